@@ -1,0 +1,106 @@
+// Result objects: the plain, JSON-serialisable values that the kernel hands to the workbench, the
+// command line and verification records. Shapes follow shared/design/records.md exactly; fields
+// beyond the contract are additions, never renamings.
+
+/** A value as shown to people and written to records: booleans, integers, or enum labels. */
+export type ShownValue = boolean | number | string
+
+/** One variable change in a tick: `variable` is `name` or `name[j]` (j: the peer process, 1-based). */
+export interface Change { process: number; variable: string; from: ShownValue; to: ShownValue }
+
+/** A message in a tick description: `message` is `kind` or `kind(v1, v2)`. */
+export interface MessageEvent { from: number; to: number; message: string }
+
+/** What happened in one tick of a counterexample (records.md). Processes are 1-based. */
+export interface TickRecord {
+  tick: number
+  crashed: number[]
+  /** stabilizing only: true in the tick that set `stable`. */
+  stabilized?: boolean
+  stepped: number[]
+  received: MessageEvent[]
+  sent: MessageEvent[]
+  changes: Change[]
+}
+
+/** The values every process starts with in a counterexample (needed where `any` initial values branch). */
+export interface InitialProcess { process: number; values: Record<string, ShownValue> }
+
+export interface Counterexample {
+  kind: 'trace' | 'lasso' | 'model-error'
+  message: string
+  initial: InitialProcess[]
+  ticks: TickRecord[]
+  /** lasso only: index into `ticks` where the repeating part begins. */
+  loopStart?: number
+  /** The property's atoms, and for each state (initial state first, then after each tick) which hold. */
+  atoms?: { text: string; values: boolean[] }[]
+}
+
+/** One failed class-check rule (cutoff.md). */
+export interface Reason { rule: number; line: number; column: number; message: string }
+
+export interface CutoffInfo {
+  applies: boolean
+  /** The cutoff instance size when it applies (1 or 2), else null. */
+  processes: number | null
+  /** Plain-text theorem instance, e.g. "for every N >= 2: G_N |= forall p != q. phi(p, q) iff G_2 |= phi(1, 2)". */
+  statement: string
+  /** The same statement as TeX for the workbench to typeset. */
+  tex: string
+  /** The rules that passed (when it applies). */
+  passed: string[]
+  reasons: Reason[]
+}
+
+export type Verdict = 'holds' | 'violated' | 'inconclusive' | 'error'
+
+/** One row of a check: one property at one size and one constant setting. */
+export interface CheckRow {
+  /** Position of this row in the notebook's full, deterministic row plan (0-based); shards keep it. */
+  row: number
+  /** Index of the check in the notebook (0-based, in notebook order). */
+  check: number
+  protocol: string
+  property: string
+  processes: number
+  constants: Record<string, number>
+  timing: 'synchronous' | 'stabilizing' | 'asynchronous'
+  verdict: Verdict
+  states: number
+  transitions: number
+  seconds: number
+  complete: boolean
+  cutoff: CutoffInfo
+  counterexample: Counterexample | null
+  /** The processes the property's variables were bound to, e.g. {p: 1, q: 2}. */
+  assignment: Record<string, number>
+  /** How the property was checked: 'invariant' (reachability) or 'ltl' (automaton product). */
+  method?: 'invariant' | 'ltl'
+  /** Symmetry-reduced state count, when the check used reduction. */
+  reducedStates?: number
+  /** Why the verdict is inconclusive or error, in one sentence. */
+  note?: string
+  /** With explicit sizes where the cutoff also applies: whether the sizes agree (false is a soundness alarm). */
+  agreement?: boolean
+}
+
+export interface ErrorEntry { line: number; column: number; message: string }
+
+/** The `--json` document of records.md. */
+export interface Report {
+  notebook: { path: string; sha256: string }
+  errors: ErrorEntry[]
+  checks: CheckRow[]
+}
+
+/** Progress of a long check, reported at most every 100 ms. */
+export interface Progress {
+  check: number
+  property: string
+  processes: number
+  states: number
+  transitions: number
+  statesPerSecond: number
+  seconds: number
+}

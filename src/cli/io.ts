@@ -1,0 +1,76 @@
+// What a command may touch: two output streams, the working directory, and the kernel. Tests pass
+// their own, so they run the command line in-process and read what it printed.
+import { readFile, writeFile } from 'node:fs/promises'
+import { resolve } from 'node:path'
+import type { RecordKernel } from '../../kernels/record/kernel'
+import type { VerificationRecord } from '../../kernels/record/record'
+import { RecordError, parseRecord } from '../../kernels/record/replay'
+
+/** The command line's world. Everything printed goes through `stdout` and `stderr`. */
+export interface CliIo {
+  stdout(text: string): void
+  stderr(text: string): void
+  /** Whether stderr is a terminal: the progress line is drawn only then. */
+  stderrIsTTY: boolean
+  /** Relative paths on the command line are resolved against this directory. */
+  cwd: string
+  /** The kernel to run; the real one (kernels/api.ts) when omitted. */
+  kernel?: RecordKernel
+}
+
+/** The process's own streams and directory. */
+export function processIo(): CliIo {
+  return {
+    stdout: (text) => void process.stdout.write(text),
+    stderr: (text) => void process.stderr.write(text),
+    stderrIsTTY: Boolean(process.stderr.isTTY),
+    cwd: process.cwd(),
+  }
+}
+
+/** A failure the user can act on: printed as one line on stderr, then the command exits with `code`. */
+export class CliFailure extends Error {
+  override name = 'CliFailure'
+  constructor(message: string, readonly code: number) {
+    super(message)
+  }
+}
+
+/** Reads a text file named on the command line; an unreadable file is a `CliFailure` with `code`. */
+export async function readInput(io: CliIo, path: string, what: string, code: number): Promise<string> {
+  try {
+    return await readFile(resolve(io.cwd, path), 'utf8')
+  } catch (e) {
+    throw new CliFailure(`cannot read ${what} ${path}: ${describe(e)}`, code)
+  }
+}
+
+/** Writes a file named on the command line; a failed write is a `CliFailure` with `code`. */
+export async function writeOutput(io: CliIo, path: string, text: string, what: string, code: number): Promise<void> {
+  try {
+    await writeFile(resolve(io.cwd, path), text, 'utf8')
+  } catch (e) {
+    throw new CliFailure(`cannot write ${what} ${path}: ${describe(e)}`, code)
+  }
+}
+
+/** Reads and validates a record file; an unreadable or malformed one is a one-line failure with exit code 2. */
+export async function readRecordFile(io: CliIo, path: string): Promise<VerificationRecord> {
+  const text = await readInput(io, path, 'record', 2)
+  try {
+    return parseRecord(text)
+  } catch (e) {
+    if (e instanceof RecordError) throw new CliFailure(`${path}: ${e.message}`, 2)
+    throw e
+  }
+}
+
+/** The first line of an error's message, without the stack. */
+export function describe(e: unknown): string {
+  const err = e as NodeJS.ErrnoException
+  if (err && err.code === 'ENOENT') return 'no such file'
+  if (err && err.code === 'EISDIR') return 'it is a directory'
+  if (err && err.code === 'EACCES') return 'permission denied'
+  const message = e instanceof Error ? e.message : String(e)
+  return message.split('\n')[0]
+}

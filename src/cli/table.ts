@@ -1,0 +1,112 @@
+// The readable form of a report: one table row per checked row, then what a reader needs below it:
+// counterexamples tick by tick in a compact form, the reasons a cutoff was refused, notes, and the
+// cutoff statements the verdicts stand for.
+import type { CheckRow, Counterexample, Report, ShownValue, TickRecord } from '../../kernels/result'
+
+/** `file:line:column: message`, the form editors and CI logs link from. */
+export function diagnosticLine(path: string, line: number, column: number, message: string): string {
+  return `${path}:${line}:${column}: ${message}`
+}
+
+const HEADER = ['property', 'instance', 'constants', 'verdict', 'states', 'transitions', 'time']
+const NUMERIC = new Set([4, 5, 6])
+
+/** The instance a row was checked on, e.g. `G_2 (cutoff)` when the cutoff picked the size. */
+export function instanceLabel(row: CheckRow): string {
+  if (row.processes < 1) return '-'
+  const cutoff = row.cutoff.applies && row.cutoff.processes === row.processes ? ' (cutoff)' : ''
+  return `G_${row.processes}${cutoff}`
+}
+
+function constantsLabel(constants: Record<string, number>): string {
+  const parts = Object.entries(constants).map(([name, value]) => `${name}=${value}`)
+  return parts.length ? parts.join(' ') : '-'
+}
+
+function count(n: number, complete: boolean): string {
+  return n.toLocaleString('en-US') + (complete ? '' : '+')
+}
+
+/** The table and details for a report, as printed by `twofold check`. Ends with a newline. */
+export function renderReport(report: Report): string {
+  const path = report.notebook.path
+  const out: string[] = []
+  if (report.checks.length === 0) {
+    out.push(report.errors.length ? 'nothing was checked: the notebook has errors' : 'the notebook has no checks to run')
+    return out.join('\n') + '\n'
+  }
+  // Name the protocol only when the notebook checks more than one.
+  const oneProtocol = report.checks.every((r) => r.protocol === report.checks[0].protocol)
+  const cells = report.checks.map((row) => [
+    oneProtocol ? row.property : `${row.protocol}/${row.property}`,
+    instanceLabel(row),
+    constantsLabel(row.constants),
+    row.verdict + (row.agreement === false ? ' (sizes disagree!)' : ''),
+    count(row.states, row.complete),
+    count(row.transitions, row.complete),
+    `${row.seconds.toFixed(2)} s`,
+  ])
+  const widths = HEADER.map((h, c) => Math.max(h.length, ...cells.map((r) => r[c].length)))
+  const line = (r: string[]) =>
+    r.map((cell, c) => (NUMERIC.has(c) ? cell.padStart(widths[c]) : cell.padEnd(widths[c]))).join('  ').trimEnd()
+  out.push(line(HEADER))
+  out.push(line(widths.map((w) => '-'.repeat(w))))
+  for (const r of cells) out.push(line(r))
+
+  const details: string[] = []
+  for (const row of report.checks) {
+    const title = `${row.protocol}/${row.property} on ${instanceLabel(row)}${Object.keys(row.constants).length ? ` with ${constantsLabel(row.constants)}` : ''}`
+    const lines: string[] = []
+    if (row.note) lines.push(`  ${row.note}`)
+    if (!row.complete && row.verdict !== 'violated') lines.push('  stopped before exploring every state (counts are a lower bound)')
+    if (row.agreement === false) lines.push('  soundness alarm: the explicit sizes and the cutoff instance disagree')
+    if (!row.cutoff.applies && row.cutoff.reasons.length) {
+      lines.push('  cutoff refused:')
+      for (const reason of row.cutoff.reasons) lines.push('    ' + diagnosticLine(path, reason.line, reason.column, `rule ${reason.rule}: ${reason.message}`))
+    }
+    if (row.counterexample) lines.push(...renderCounterexample(row.counterexample, row.assignment))
+    if (lines.length) details.push('', `${title}: ${row.verdict}`, ...lines)
+  }
+  out.push(...details)
+
+  const statements = [...new Set(report.checks.filter((r) => r.cutoff.applies && r.cutoff.statement).map((r) => r.cutoff.statement))]
+  if (statements.length) {
+    out.push('', 'cutoff statements used:')
+    for (const s of statements) out.push(`  ${s}`)
+  }
+  const tally = (v: string) => report.checks.filter((r) => r.verdict === v).length
+  out.push('', `${report.checks.length} row${report.checks.length === 1 ? '' : 's'}: ${tally('holds')} hold, ${tally('violated')} violated, ${tally('inconclusive')} inconclusive, ${tally('error')} error`)
+  return out.join('\n') + '\n'
+}
+
+function shown(v: ShownValue): string {
+  return String(v)
+}
+
+/** A counterexample, one line per tick: `t3  crash #2 | step #1 | #1<-#2 beat | #1->#2 beat | #1 quiet[2] 0->1`. */
+export function renderCounterexample(cx: Counterexample, assignment: Record<string, number>): string[] {
+  const bound = Object.entries(assignment).map(([v, n]) => `${v}=#${n}`).join(', ')
+  const shape = cx.kind === 'lasso' ? `lasso, ${cx.ticks.length} ticks, loop from tick index ${cx.loopStart}` : `${cx.kind}, ${cx.ticks.length} ticks`
+  const lines = [`  counterexample (${shape}${bound ? `; ${bound}` : ''}): ${cx.message}`]
+  if (cx.initial.length) {
+    const start = cx.initial.map((p) => `#${p.process} ` + Object.entries(p.values).map(([k, v]) => `${k}=${shown(v)}`).join(' '))
+    lines.push(`    start  ${start.join(' | ')}`)
+  }
+  cx.ticks.forEach((tick, i) => {
+    if (cx.kind === 'lasso' && i === cx.loopStart) lines.push('    -- from here the ticks repeat forever --')
+    lines.push(`    t${tick.tick}  ${renderTick(tick)}`)
+  })
+  return lines
+}
+
+/** One tick in compact form; `nothing` when no process acted. */
+export function renderTick(tick: TickRecord): string {
+  const parts: string[] = []
+  if (tick.crashed.length) parts.push('crash ' + tick.crashed.map((p) => `#${p}`).join(' '))
+  if (tick.stabilized) parts.push('stable')
+  parts.push(tick.stepped.length ? 'step ' + tick.stepped.map((p) => `#${p}`).join(' ') : 'no step')
+  for (const m of tick.received) parts.push(`#${m.to}<-#${m.from} ${m.message}`)
+  for (const m of tick.sent) parts.push(`#${m.from}->#${m.to} ${m.message}`)
+  for (const c of tick.changes) parts.push(`#${c.process} ${c.variable} ${shown(c.from)}->${shown(c.to)}`)
+  return parts.join(' | ')
+}

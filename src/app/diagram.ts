@@ -1,0 +1,176 @@
+// The space-time diagram of a counterexample: one vertical lane per process, time running down,
+// one row per global state (the initial state, then the state after each tick). Message arrows
+// run from the tick that sent to the tick that received; crashes are crossed out; columns beside
+// the lanes are shaded where the property's atoms hold; a lasso's repeating part is bracketed.
+// Pure: a Counterexample in, an SVG string out, every text escaped (see html.ts).
+import type { Counterexample, MessageEvent } from '../../kernels/result'
+import { html, raw, type Markup } from './html'
+
+/** One arrow of the diagram. `receiveTick` is null when the trace never shows the receipt. */
+export interface Arrow {
+  from: number
+  to: number
+  message: string
+  sendTick: number | null // null: sent before the loop came round again (lasso) or never shown
+  receiveTick: number | null
+}
+
+/**
+ * Pairs sends with receipts: a receipt of (from, to, message) at tick t is matched with the oldest
+ * unmatched send of the same triple at an earlier tick. Copies of one value are one message in
+ * the channel (semantics.md), so the oldest is the one that can be overdue first.
+ */
+export function messageArrows(cx: Counterexample): Arrow[] {
+  const key = (m: MessageEvent) => `${m.from}\u0000${m.to}\u0000${m.message}`
+  const open = new Map<string, Arrow[]>()
+  const arrows: Arrow[] = []
+  cx.ticks.forEach((tick, i) => {
+    for (const r of tick.received) {
+      const queue = open.get(key(r))
+      const sent = queue?.shift()
+      if (sent) sent.receiveTick = i
+      else arrows.push({ from: r.from, to: r.to, message: r.message, sendTick: null, receiveTick: i })
+    }
+    for (const s of tick.sent) {
+      const a: Arrow = { from: s.from, to: s.to, message: s.message, sendTick: i, receiveTick: null }
+      arrows.push(a)
+      const q = open.get(key(s))
+      if (q) q.push(a)
+      else open.set(key(s), [a])
+    }
+  })
+  return arrows
+}
+
+/** Options for the diagram. */
+export interface DiagramOptions {
+  /** Indices into `counterexample.atoms` to shade; all atoms when omitted. */
+  atoms?: number[]
+}
+
+const ROW = 30
+const LANE = 110
+const TOP = 46
+const LEFT = 70
+const ATOM_COL = 22
+const PALETTE = ['#6c8f3a', '#b07a2a', '#5a6fa0', '#8a5a8c', '#3f8a86', '#a0525a']
+
+/** Colour of atom `i` (shared with the table legend). */
+export function atomColour(i: number): string { return PALETTE[i % PALETTE.length] }
+
+/** The SVG markup of a counterexample's space-time diagram for an instance of `processes` processes. */
+export function counterexampleSvg(cx: Counterexample, processes: number, opts: DiagramOptions = {}): string {
+  const ticks = cx.ticks.length
+  const states = ticks + 1
+  const atoms = (cx.atoms ?? []).map((a, i) => ({ ...a, i })).filter((a) => !opts.atoms || opts.atoms.includes(a.i))
+  const laneX = (p: number) => LEFT + (p - 1) * LANE + LANE / 2
+  const stateY = (k: number) => TOP + k * ROW + ROW / 2
+  const tickY = (i: number) => stateY(i) + ROW / 2 // between state i and state i+1
+  const atomsX = LEFT + processes * LANE + 10
+  const legendY = TOP + states * ROW + 24
+  const width = atomsX + atoms.length * ATOM_COL + 20
+  const height = legendY + atoms.length * 18 + 10
+  const crashTick = new Map<number, number>()
+  cx.ticks.forEach((t, i) => t.crashed.forEach((p) => { if (!crashTick.has(p)) crashTick.set(p, i) }))
+
+  const parts: Markup[] = []
+  // Hover bands first so that everything else draws on top of them.
+  for (let i = 0; i < ticks; i++) {
+    parts.push(html`<rect class="tick-band" data-tick="${i}" x="0" y="${tickY(i) - ROW / 2}" width="${width}" height="${ROW}"><title>tick ${cx.ticks[i].tick}</title></rect>`)
+  }
+  for (let k = 0; k < states; k++) {
+    parts.push(html`<text class="state-label" x="${LEFT - 10}" y="${stateY(k) + 4}" text-anchor="end">${k === 0 ? 'start' : `after ${cx.ticks[k - 1].tick}`}</text>`)
+  }
+  if (cx.loopStart !== undefined && cx.loopStart >= 0 && cx.loopStart <= ticks) {
+    const y1 = stateY(cx.loopStart)
+    const y2 = stateY(ticks)
+    parts.push(html`<g class="loop"><path d="M ${LEFT - 62} ${y1} h 6 M ${LEFT - 62} ${y1} V ${y2} h 6" /><text x="${LEFT - 66}" y="${(y1 + y2) / 2}" transform="rotate(-90 ${LEFT - 66} ${(y1 + y2) / 2})" text-anchor="middle">repeats forever</text></g>`)
+  }
+  for (let p = 1; p <= processes; p++) {
+    const x = laneX(p)
+    const c = crashTick.get(p)
+    const end = c === undefined ? stateY(ticks) : tickY(c)
+    parts.push(html`<text class="lane-label" x="${x}" y="${TOP - 16}" text-anchor="middle">process ${p}</text>`)
+    parts.push(html`<line class="lane" x1="${x}" y1="${stateY(0)}" x2="${x}" y2="${end}" />`)
+    if (c !== undefined) {
+      const y = tickY(c)
+      parts.push(html`<line class="lane-dead" x1="${x}" y1="${y}" x2="${x}" y2="${stateY(ticks)}" />`)
+      parts.push(html`<path class="crash" d="M ${x - 7} ${y - 7} L ${x + 7} ${y + 7} M ${x + 7} ${y - 7} L ${x - 7} ${y + 7}"><title>process ${p} crashes in tick ${cx.ticks[c].tick}</title></path>`)
+    }
+  }
+  cx.ticks.forEach((t, i) => {
+    for (const p of t.stepped) parts.push(html`<circle class="step" cx="${laneX(p)}" cy="${tickY(i)}" r="3.5"><title>process ${p} steps in tick ${t.tick}</title></circle>`)
+  })
+  for (const a of messageArrows(cx)) {
+    const x1 = laneX(a.from)
+    const x2 = laneX(a.to)
+    const dir = x2 > x1 ? 1 : -1
+    const label = `${a.message}: ${a.from} to ${a.to}`
+    if (a.sendTick !== null && a.receiveTick !== null) {
+      const y1 = tickY(a.sendTick)
+      const y2 = tickY(a.receiveTick)
+      parts.push(html`<line class="msg" x1="${x1}" y1="${y1}" x2="${x2 - dir * 5}" y2="${y2}" marker-end="url(#arrowhead)"><title>${label}, sent in tick ${cx.ticks[a.sendTick].tick}, received in tick ${cx.ticks[a.receiveTick].tick}</title></line>`)
+      parts.push(html`<text class="msg-label" x="${(x1 + x2) / 2}" y="${(y1 + y2) / 2 - 4}" text-anchor="middle">${a.message}</text>`)
+    } else if (a.sendTick !== null) {
+      // Never received within the trace: in flight at the end, or dropped at a crashed receiver.
+      const y1 = tickY(a.sendTick)
+      parts.push(html`<line class="msg msg-open" x1="${x1}" y1="${y1}" x2="${x1 + dir * LANE * 0.35}" y2="${y1 + ROW * 0.6}"><title>${label}, sent in tick ${cx.ticks[a.sendTick].tick}, not received in this trace</title></line>`)
+    } else if (a.receiveTick !== null) {
+      // Received but sent before the shown part began (a message from the previous loop round).
+      const y2 = tickY(a.receiveTick)
+      parts.push(html`<line class="msg msg-open" x1="${x2 - dir * LANE * 0.35}" y1="${y2 - ROW * 0.6}" x2="${x2 - dir * 5}" y2="${y2}" marker-end="url(#arrowhead)"><title>${label}, received in tick ${cx.ticks[a.receiveTick].tick}, sent in an earlier round of the loop</title></line>`)
+    }
+  }
+  atoms.forEach((a, col) => {
+    const x = atomsX + col * ATOM_COL
+    parts.push(html`<text class="atom-key" x="${x + ATOM_COL / 2 - 2}" y="${TOP - 16}" text-anchor="middle">${`a${a.i + 1}`}</text>`)
+    parts.push(html`<rect class="atom-track" x="${x}" y="${TOP}" width="${ATOM_COL - 4}" height="${states * ROW}" />`)
+    a.values.forEach((v, k) => {
+      if (v && k < states) parts.push(html`<rect class="atom-band" x="${x}" y="${TOP + k * ROW}" width="${ATOM_COL - 4}" height="${ROW}" fill="${atomColour(a.i)}"><title>${a.text} holds ${k === 0 ? 'at the start' : `after tick ${cx.ticks[k - 1].tick}`}</title></rect>`)
+    })
+    parts.push(html`<rect x="${LEFT}" y="${legendY + col * 18 - 10}" width="12" height="12" fill="${atomColour(a.i)}" /><text class="legend" x="${LEFT + 18}" y="${legendY + col * 18}">${`a${a.i + 1}`}: ${a.text}</text>`)
+  })
+  const title = `Counterexample (${cx.kind}): ${cx.message}`
+  return html`<svg xmlns="http://www.w3.org/2000/svg" class="spacetime" role="img" width="${width}" height="${height}" viewBox="0 0 ${width} ${height}"><title>${title}</title><defs><marker id="arrowhead" viewBox="0 0 10 10" refX="9" refY="5" markerWidth="7" markerHeight="7" orient="auto-start-reverse"><path d="M 0 0 L 10 5 L 0 10 z" fill="#2f5d50" /></marker></defs><style>${raw(DIAGRAM_CSS)}</style>${parts}</svg>`.text
+}
+
+/** The diagram's own styles, inlined so that the SVG also reads well inside the exported report. */
+const DIAGRAM_CSS = [
+  '.spacetime text{font:12px Georgia,serif;fill:#2a2a28}',
+  '.spacetime .lane{stroke:#55534d;stroke-width:1.5}',
+  '.spacetime .lane-dead{stroke:#b9b4a8;stroke-width:1.5;stroke-dasharray:3 4}',
+  '.spacetime .crash{stroke:#a33b20;stroke-width:2.5}',
+  '.spacetime .step{fill:#2a2a28}',
+  '.spacetime .msg{stroke:#2f5d50;stroke-width:1.3}',
+  '.spacetime .msg-open{stroke-dasharray:4 3}',
+  '.spacetime .msg-label{font-size:10px;fill:#2f5d50}',
+  '.spacetime .state-label{font-size:10px;fill:#77736a}',
+  '.spacetime .tick-band{fill:transparent}',
+  '.spacetime .tick-band.lit{fill:#f1e7c8}',
+  '.spacetime .atom-track{fill:#f3f1ea}',
+  '.spacetime .atom-band{opacity:.75}',
+  '.spacetime .loop path{stroke:#8a5a8c;stroke-width:1.5;fill:none}',
+  '.spacetime .loop text{fill:#8a5a8c;font-size:11px}',
+].join('')
+
+function shown(v: boolean | number | string): string { return String(v) }
+
+/** The tick-by-tick table of what happened, one row per tick (`data-tick` matches the diagram). */
+export function changesTable(cx: Counterexample): string {
+  const initial = cx.initial.map((p) => {
+    const vals = Object.entries(p.values).map(([k, v]) => `${k} = ${shown(v)}`).join(', ')
+    return html`<div><span class="who">process ${p.process}</span> ${vals}</div>`
+  })
+  const rows = cx.ticks.map((t, i) => {
+    const lines: Markup[] = []
+    if (t.stabilized) lines.push(html`<div class="ev-stable">timing becomes bounded</div>`)
+    for (const p of t.crashed) lines.push(html`<div class="ev-crash">process ${p} crashes</div>`)
+    if (t.stepped.length) lines.push(html`<div class="ev-step">${t.stepped.length === 1 ? 'steps' : 'step'}: ${t.stepped.join(', ')}</div>`)
+    for (const r of t.received) lines.push(html`<div class="ev-recv">${r.to} receives ${r.message} from ${r.from}</div>`)
+    for (const s of t.sent) lines.push(html`<div class="ev-send">${s.from} sends ${s.message} to ${s.to}</div>`)
+    for (const c of t.changes) lines.push(html`<div class="ev-change">${c.process}: ${c.variable} ${shown(c.from)} → ${shown(c.to)}</div>`)
+    const loop = cx.loopStart === i ? html`<div class="ev-loop">the loop starts here</div>` : null
+    return html`<tr data-tick="${i}"><th scope="row">${t.tick}</th><td>${loop}${lines.length ? lines : html`<span class="quiet">nothing happens</span>`}</td></tr>`
+  })
+  return html`<table class="ticks"><caption>What happens, tick by tick</caption><thead><tr><th scope="col">tick</th><th scope="col">events and changes</th></tr></thead><tbody><tr class="initial"><th scope="row">start</th><td>${initial}</td></tr>${rows}</tbody></table>`.text
+}

@@ -1,0 +1,160 @@
+// The notebook as a tiling of spans. The text is the single source of truth: a segment is only a
+// pair of offsets into it, recomputed from the text after every structural edit, and every edit
+// of a block is a replacement of its content span. Formal blocks are the fences whose info string
+// starts with `protocol`, `property` or `check` (language.md); prose is split at headings so that
+// sections can be moved as blocks.
+import MarkdownIt from 'markdown-it'
+
+/** What a segment holds. `front` is the front-matter block between `---` lines. */
+export type SegmentKind = 'front' | 'prose' | 'protocol' | 'property' | 'check'
+
+/** A span of the notebook text. Segments tile the text: each starts where the previous ends. */
+export interface Segment {
+  kind: SegmentKind
+  /** Start of the segment's first line. */
+  from: number
+  /** End of the segment (exclusive), trailing blank lines included. */
+  to: number
+  /** The editable part: a formal block's lines between its fences; all of a prose segment. */
+  contentFrom: number
+  contentTo: number
+}
+
+const FORMAL = new Set(['protocol', 'property', 'check'])
+const md = new MarkdownIt('commonmark')
+
+/** Offsets of the first character of every line (line 1 at index 0). */
+export function lineStarts(text: string): number[] {
+  const starts = [0]
+  for (let i = 0; i < text.length; i++) if (text.charCodeAt(i) === 10) starts.push(i + 1)
+  return starts
+}
+
+/** Converts a 1-based line and column to an offset, clamped to the text. */
+export function offsetOf(text: string, line: number, column: number): number {
+  const starts = lineStarts(text)
+  const l = Math.min(Math.max(line, 1), starts.length)
+  return Math.min(starts[l - 1] + Math.max(column, 1) - 1, text.length)
+}
+
+/** The length of a front-matter block at the very start of the text (0 when there is none). */
+export function frontMatterLength(text: string): number {
+  const m = /^---[ \t]*\r?\n(?:.*\r?\n)*?---[ \t]*(?:\r?\n|$)/.exec(text)
+  return m ? m[0].length : 0
+}
+
+function isBlank(text: string, from: number, to: number): boolean {
+  return /^\s*$/.test(text.slice(from, to))
+}
+
+/** Splits the notebook text into segments. Pure; the same text always gives the same segments. */
+export function segment(text: string): Segment[] {
+  const starts = lineStarts(text)
+  const lineCount = starts.length
+  const at = (line: number) => (line >= lineCount ? text.length : starts[line]) // 0-based line
+  const front = frontMatterLength(text)
+  const frontLines = front ? text.slice(0, front).split('\n').length - (text.slice(0, front).endsWith('\n') ? 1 : 0) : 0
+  // Blank out the front matter (keeping line numbers) so markdown-it does not read it as prose.
+  const body = front ? '\n'.repeat(frontLines) + text.slice(front) : text
+  const tokens = md.parse(body, {})
+
+  // Cut points: [line, kind, contentFromLine, contentToLine] for formal blocks; headings start prose.
+  type Cut = { line: number; kind: SegmentKind; endLine: number; contentLine: number; contentEndLine: number }
+  const cuts: Cut[] = []
+  for (const t of tokens) {
+    if (t.level !== 0 || !t.map) continue
+    const [a, b] = t.map
+    if (t.type === 'fence' && FORMAL.has(t.info.trim().split(/\s+/)[0])) {
+      // The closing fence is the last mapped line when it is a fence line; an unclosed fence runs to the end.
+      const lastLine = b - 1
+      const lastText = text.slice(at(lastLine), at(lastLine + 1)).trim()
+      const closed = b - a >= 2 && /^(`{3,}|~{3,})$/.test(lastText)
+      cuts.push({ line: a, kind: t.info.trim().split(/\s+/)[0] as SegmentKind, endLine: b, contentLine: a + 1, contentEndLine: closed ? lastLine : b })
+    } else if (t.type === 'heading_open') {
+      cuts.push({ line: a, kind: 'prose', endLine: -1, contentLine: a, contentEndLine: -1 })
+    }
+  }
+
+  const segs: Segment[] = []
+  if (front) segs.push({ kind: 'front', from: 0, to: front, contentFrom: 0, contentTo: front })
+  let pos = front
+  const pushProse = (to: number) => {
+    if (to <= pos) return
+    if (isBlank(text, pos, to) && segs.length) {
+      // Blank lines between blocks belong to the block above, so no empty prose block appears.
+      const last = segs[segs.length - 1]
+      last.to = to
+      if (last.kind === 'prose') last.contentTo = to
+    } else {
+      segs.push({ kind: 'prose', from: pos, to, contentFrom: pos, contentTo: to })
+    }
+    pos = to
+  }
+  for (const c of cuts) {
+    const from = at(c.line)
+    if (from < pos) continue
+    if (c.kind === 'prose') {
+      pushProse(from)
+      continue
+    }
+    pushProse(from)
+    const to = at(c.endLine)
+    segs.push({ kind: c.kind, from, to, contentFrom: at(c.contentLine), contentTo: Math.max(at(c.contentLine), at(c.contentEndLine)) })
+    pos = to
+  }
+  pushProse(text.length)
+  if (!segs.length) segs.push({ kind: 'prose', from: 0, to: text.length, contentFrom: 0, contentTo: text.length })
+  return segs
+}
+
+/** The text of a segment's editable part. */
+export function contentOf(text: string, seg: Segment): string {
+  return text.slice(seg.contentFrom, seg.contentTo)
+}
+
+/** Replaces a segment's editable part. */
+export function replaceContent(text: string, seg: Segment, content: string): string {
+  return text.slice(0, seg.contentFrom) + content + text.slice(seg.contentTo)
+}
+
+/** The text that a new block of each kind starts with. Formal blocks start with an empty body. */
+export function newBlockText(kind: Exclude<SegmentKind, 'front'>): string {
+  if (kind === 'prose') return '## New section\n\nWrite the argument here.\n\n'
+  return '```' + kind + '\n\n```\n\n'
+}
+
+function withNewline(s: string): string {
+  return s.endsWith('\n') ? s : s + '\n'
+}
+
+/** Inserts a new block before segment `index` (or at the end when index equals the count). */
+export function insertBlock(text: string, index: number, kind: Exclude<SegmentKind, 'front'>): string {
+  const segs = segment(text)
+  let i = Math.min(Math.max(index, 0), segs.length)
+  if (i === 0 && segs[0]?.kind === 'front') i = 1
+  const block = newBlockText(kind)
+  if (i >= segs.length) {
+    const base = text.length === 0 ? '' : text.endsWith('\n\n') ? text : withNewline(text) + '\n'
+    return base + block
+  }
+  const at = segs[i].from
+  return text.slice(0, at) + block + text.slice(at)
+}
+
+/** Removes segment `index` with its trailing blank lines. */
+export function deleteBlock(text: string, index: number): string {
+  const seg = segment(text)[index]
+  if (!seg) return text
+  return text.slice(0, seg.from) + text.slice(seg.to)
+}
+
+/** Swaps segment `index` with its neighbour (`-1` up, `+1` down). The front matter stays first. */
+export function moveBlock(text: string, index: number, direction: -1 | 1): string {
+  const segs = segment(text)
+  const j = index + direction
+  if (!segs[index] || !segs[j] || segs[index].kind === 'front' || segs[j].kind === 'front') return text
+  const [a, b] = index < j ? [segs[index], segs[j]] : [segs[j], segs[index]]
+  // Each moved piece must end with a blank line, or it would run into its new neighbour.
+  const pad = (s: string) => (s.endsWith('\n\n') ? s : withNewline(s) + '\n')
+  return text.slice(0, a.from) + pad(text.slice(b.from, b.to)) + pad(text.slice(a.from, a.to)) + text.slice(b.to)
+}

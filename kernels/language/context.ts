@@ -1,0 +1,43 @@
+// The state a block's resolver carries: where the block sits, and the diagnostics found so far.
+import type { SyntaxNode } from '@lezer/common'
+import type { BlockRef, Diagnostic, Span } from './model'
+import type { LineMap } from './positions'
+
+/** Resolution context of one formal block: maps tree nodes to notebook spans and collects diagnostics. */
+export class BlockContext {
+  constructor(
+    readonly lines: LineMap,
+    readonly block: BlockRef,
+    readonly diagnostics: Diagnostic[],
+  ) {}
+
+  /** Source text of a node. */
+  text(node: SyntaxNode): string {
+    return this.block.text.slice(node.from, node.to)
+  }
+
+  /** Notebook span of a node (block offsets shifted to notebook offsets). */
+  span(node: SyntaxNode | { from: number; to: number }): Span {
+    return this.lines.span(this.block.from + node.from, this.block.from + node.to)
+  }
+
+  error(at: SyntaxNode | Span | { from: number; to: number }, message: string): void {
+    this.report('error', at, message)
+  }
+
+  warn(at: SyntaxNode | Span | { from: number; to: number }, message: string): void {
+    this.report('warning', at, message)
+  }
+
+  private report(severity: Diagnostic['severity'], at: SyntaxNode | Span | { from: number; to: number }, message: string): void {
+    const span = 'line' in at ? at : this.span(at)
+    this.diagnostics.push({ ...span, severity, message })
+  }
+}
+
+/** The named children of a node, skipping anonymous tokens (punctuation). */
+export function children(node: SyntaxNode): SyntaxNode[] {
+  const out: SyntaxNode[] = []
+  for (let c = node.firstChild; c; c = c.nextSibling) out.push(c)
+  return out
+}

@@ -1,0 +1,80 @@
+// Sorts: the checker's view of a value's type (an integer, a boolean, or one enum), and the
+// evaluation of constant expressions with given constant values.
+import type { Expr, Type } from './model'
+
+export type Sort = { k: 'int' } | { k: 'bool' } | { k: 'enum'; labels: readonly string[] }
+
+export const INT: Sort = { k: 'int' }
+export const BOOL: Sort = { k: 'bool' }
+
+/** The sort of values of a declared type. */
+export function sortOf(type: Type): Sort {
+  return type.k === 'range' ? INT : type.k === 'bool' ? BOOL : { k: 'enum', labels: type.labels }
+}
+
+export function sameSort(a: Sort, b: Sort): boolean {
+  if (a.k !== b.k) return false
+  if (a.k === 'enum' && b.k === 'enum') return a.labels.length === b.labels.length && a.labels.every((l, i) => l === b.labels[i])
+  return true
+}
+
+/** How a sort is named in messages. */
+export function sortName(s: Sort): string {
+  return s.k === 'int' ? 'an integer' : s.k === 'bool' ? 'a boolean' : `one of {${s.labels.join(', ')}}`
+}
+
+/** Thrown by `evalConstant` when a constant expression cannot be evaluated (division by zero). */
+export class ConstantError extends Error {}
+
+/**
+ * Evaluates an expression that uses only literals and constants (type bounds, initial values,
+ * timing parameters). Integer division truncates toward zero, as everywhere in the kernel.
+ */
+export function evalConstant(e: Expr, constants: readonly number[]): number {
+  switch (e.k) {
+    case 'lit': return e.value
+    case 'const': return constants[e.index]
+    case 'neg': return -evalConstant(e.arg, constants)
+    case 'not': return evalConstant(e.arg, constants) ? 0 : 1
+    case 'min': return Math.min(evalConstant(e.left, constants), evalConstant(e.right, constants))
+    case 'max': return Math.max(evalConstant(e.left, constants), evalConstant(e.right, constants))
+    case 'ite': return evalConstant(e.cond, constants) ? evalConstant(e.then, constants) : evalConstant(e.else, constants)
+    case 'bin': {
+      const a = evalConstant(e.left, constants)
+      const b = evalConstant(e.right, constants)
+      switch (e.op) {
+        case '+': return a + b
+        case '-': return a - b
+        case '*': return a * b
+        case '/': if (b === 0) throw new ConstantError('division by zero'); return Math.trunc(a / b)
+        case '%': if (b === 0) throw new ConstantError('modulo by zero'); return a % b
+        case '=': return a === b ? 1 : 0
+        case '!=': return a !== b ? 1 : 0
+        case '<': return a < b ? 1 : 0
+        case '<=': return a <= b ? 1 : 0
+        case '>': return a > b ? 1 : 0
+        case '>=': return a >= b ? 1 : 0
+        case 'and': return a && b ? 1 : 0
+        case 'or': return a || b ? 1 : 0
+        case 'implies': return !a || b ? 1 : 0
+        case 'iff': return !a === !b ? 1 : 0
+      }
+    }
+  }
+  throw new ConstantError('not a constant expression')
+}
+
+/** The values of a type under given constants, as [lo, hi] (bool is [0, 1], an enum [0, n-1]). */
+export function typeBounds(t: Type, constants: readonly number[]): [number, number] {
+  if (t.k === 'bool') return [0, 1]
+  if (t.k === 'enum') return [0, t.labels.length - 1]
+  return [evalConstant(t.lo, constants), evalConstant(t.hi, constants)]
+}
+
+/** How a type is written in the notebook, with bounds evaluated. */
+export function typeText(t: Type, constants: readonly number[]): string {
+  if (t.k === 'bool') return 'bool'
+  if (t.k === 'enum') return `{${t.labels.join(', ')}}`
+  const [lo, hi] = typeBounds(t, constants)
+  return `${lo}..${hi}`
+}

@@ -1,0 +1,253 @@
+// On-the-fly emptiness of a generalized Büchi graph with acceptance marks on edges, by the
+// SCC-based algorithm of J.-M. Couvreur, "On-the-fly verification of linear temporal logic",
+// FM'99, LNCS 1708: one depth-first search that keeps a stack of the roots of the partial
+// strongly connected components, each with the union of the marks seen inside it; when a back
+// edge merges components and the union covers every mark, the graph has an accepting run.
+//
+// Everything is packed: per-node tables, the DFS stack and the pending edges are Int32 buffers
+// indexed by the node ids the graph assigns. Nothing recurses.
+//
+// A found component is turned into a short lasso afterwards: a breadth-first search from the
+// initial nodes to the nearest node of the component, then, inside the component, repeated
+// breadth-first searches to the nearest edge carrying a still-missing mark, and back.
+import { Int32Buffer } from './buffer'
+
+/** A graph explored on the fly, with acceptance marks (bits 0..30) on its edges. */
+export interface MarkedGraph {
+  /** Node ids of the initial nodes. Node ids are assigned by the graph, dense from 0. */
+  initial(): number[]
+  /** Appends the successors of `node` and the acceptance marks of each edge to `to` / `marks`. */
+  successors(node: number, to: number[], marks: number[]): void
+}
+
+/** Options of `findAcceptingLasso`. */
+export interface EmptinessOptions {
+  /** Polled every 1024 new nodes; returning true stops the search with `kind: 'stopped'`. */
+  shouldStop?: () => boolean
+  /** Called at most every 100 ms with the nodes and edges explored so far. */
+  onProgress?: (nodes: number, edges: number) => void
+}
+
+/**
+ * An accepting run `prefix · cycle^ω`. The run is prefix[0], prefix[1], ..., prefix[last],
+ * cycle[0], cycle[1], ..., cycle[k-1], cycle[0], ... : `prefix` starts at an initial node (it is
+ * empty when cycle[0] is initial), every consecutive pair is an edge, and so is
+ * (cycle[k-1], cycle[0]). `cycleMarks[i]` is the mark set of the edge used from cycle[i] to
+ * cycle[(i+1) % k]; together they cover every mark asked for. k >= 1.
+ */
+export interface Lasso {
+  kind: 'lasso'
+  prefix: number[]
+  cycle: number[]
+  cycleMarks: number[]
+  nodes: number
+  edges: number
+}
+
+/** The result of `findAcceptingLasso`. `nodes` and `edges` count what the search explored. */
+export type EmptinessResult =
+  | { kind: 'empty'; nodes: number; edges: number }
+  | Lasso
+  | { kind: 'stopped'; nodes: number; edges: number }
+
+const DEAD = -1
+
+/**
+ * Searches the graph for a run that passes infinitely often through edges carrying each mark of
+ * `allMarks` (so with `allMarks = 0`, for any reachable cycle), by Couvreur's algorithm (FM'99).
+ */
+export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: EmptinessOptions = {}): EmptinessResult {
+  const all = allMarks | 0
+  // num[v]: 0 unvisited, DEAD once its component is finished, else its DFS number (>0) while open.
+  const num = new Int32Buffer(1 << 16)
+  const active = new Int32Buffer() // open nodes in DFS order (Tarjan's stack)
+  const rootNum = new Int32Buffer() // the roots stack: DFS number of each partial component's root,
+  const rootAcc = new Int32Buffer() // the marks seen inside it,
+  const rootIn = new Int32Buffer() // and the marks of the tree edge that entered its root
+  const frameNode = new Int32Buffer() // the DFS stack: node and its next pending edge
+  const framePos = new Int32Buffer()
+  const edgeTo = new Int32Buffer() // pending edges of every frame, each frame's edges contiguous
+  const edgeMark = new Int32Buffer()
+  const to: number[] = [], marks: number[] = []
+  let counter = 0, nodes = 0, edges = 0, maxId = -1
+  let lastReport = Date.now()
+
+  const push = (v: number, inMark: number) => {
+    counter++
+    nodes++
+    num.data[v] = counter
+    active.push(v)
+    rootNum.push(counter)
+    rootAcc.push(0)
+    rootIn.push(inMark)
+    frameNode.push(v)
+    framePos.push(edgeTo.length)
+    to.length = 0
+    marks.length = 0
+    g.successors(v, to, marks)
+    edges += to.length
+    for (let i = 0; i < to.length; i++) {
+      const w = to[i]
+      if (w > maxId) { maxId = w; num.ensure(w + 1) }
+      edgeTo.push(w)
+      edgeMark.push(marks[i] | 0)
+    }
+  }
+
+  for (const init of g.initial()) {
+    if (init > maxId) { maxId = init; num.ensure(init + 1) }
+    if (num.data[init] !== 0) continue
+    push(init, 0)
+    while (frameNode.length > 0) {
+      const f = frameNode.length - 1
+      const v = frameNode.data[f]
+      // Only the top frame is ever worked on, so its pending edges run to the end of the buffer.
+      const p = framePos.data[f]
+      if (p < edgeTo.length) {
+        framePos.data[f] = p + 1
+        const w = edgeTo.data[p], m = edgeMark.data[p]
+        const nw = num.data[w]
+        if (nw === 0) {
+          if ((nodes & 1023) === 0) {
+            if (opts.shouldStop?.()) return { kind: 'stopped', nodes, edges }
+            if (opts.onProgress) {
+              const now = Date.now()
+              if (now - lastReport >= 100) { lastReport = now; opts.onProgress(nodes, edges) }
+            }
+          }
+          push(w, m)
+        } else if (nw > 0) {
+          // w is open: the edge closes a cycle; merge every partial component above w's.
+          let acc = m
+          while (rootNum.top() > nw) {
+            acc |= rootAcc.pop() | rootIn.pop()
+            rootNum.pop()
+          }
+          const r = rootAcc.length - 1
+          rootAcc.data[r] |= acc
+          if ((rootAcc.data[r] & all) === all) {
+            const lasso = buildLasso(g, all, num, active, rootNum.top(), maxId)
+            return { kind: 'lasso', ...lasso, nodes, edges }
+          }
+        }
+        continue
+      }
+      // v's edges are done: drop its frame and, when v is a root, close its component.
+      frameNode.pop()
+      edgeTo.length = edgeMark.length = framePos.pop()
+      if (rootNum.top() === num.data[v]) {
+        rootNum.pop(); rootAcc.pop(); rootIn.pop()
+        let w: number
+        do {
+          w = active.pop()
+          num.data[w] = DEAD
+        } while (w !== v)
+      }
+    }
+  }
+  return { kind: 'empty', nodes, edges }
+}
+
+/**
+ * A short lasso through the component whose root has DFS number `root`: its nodes are the open
+ * nodes numbered `root` or more, and its inner edges carry every mark of `all`.
+ */
+function buildLasso(g: MarkedGraph, all: number, num: Int32Buffer, active: Int32Buffer, root: number, maxId: number) {
+  const size = maxId + 1
+  const inC = new Uint8Array(size)
+  for (let i = active.length - 1; i >= 0 && num.data[active.data[i]] >= root; i--) inC[active.data[i]] = 1
+  const visited = (v: number) => v < size && num.data[v] !== 0
+  const search = new Search(size)
+
+  // Prefix: breadth-first over explored nodes, from the initial nodes to the component.
+  const starts = g.initial().filter(visited)
+  const found = search.run(g, starts, visited, (_u, w) => inC[w] === 1, true)
+  if (!found) throw new Error('internal error: accepting component not reachable from an initial node')
+  const entry = found.nodes[found.nodes.length - 1]
+  const prefix = found.nodes.slice(0, -1)
+
+  // Cycle: from the entry, collect the missing marks edge by edge, then return to the entry.
+  const cycle = [entry]
+  const cycleMarks: number[] = []
+  let missing = all
+  let at = entry
+  const inside = (v: number) => v < size && inC[v] === 1
+  for (;;) {
+    if (missing === 0 && at === entry && cycle.length > 1) break
+    const closing = missing === 0
+    const step = closing
+      ? search.run(g, [at], inside, (_u, w) => w === entry, false)
+      : search.run(g, [at], inside, (_u, w, m) => inC[w] === 1 && (m & missing) !== 0, false)
+    if (!step) throw new Error('internal error: accepting component lost its cycle')
+    for (let i = 1; i < step.nodes.length; i++) {
+      cycle.push(step.nodes[i])
+      cycleMarks.push(step.marks[i - 1])
+      missing &= ~step.marks[i - 1]
+    }
+    at = step.nodes[step.nodes.length - 1]
+    if (closing) break
+  }
+  cycle.pop() // the last node is the entry again
+  return { prefix, cycle, cycleMarks }
+}
+
+/** Breadth-first searches for the shortest path ending with an edge that satisfies a goal. */
+class Search {
+  private parent: Int32Array
+  private parentMark: Int32Array
+  private seen: Uint8Array
+  private touched: number[] = []
+  private to: number[] = []
+  private marks: number[] = []
+
+  constructor(size: number) {
+    this.parent = new Int32Array(size)
+    this.parentMark = new Int32Array(size)
+    this.seen = new Uint8Array(size)
+  }
+
+  /**
+   * Shortest path from one of `starts`, through nodes satisfying `allowed`, whose last edge
+   * satisfies `goal` (with `atStart`, a start node satisfying `goal(-1, start, 0)` is a path of no
+   * edges). Returns its nodes and the marks of its edges, or null.
+   */
+  run(g: MarkedGraph, starts: number[], allowed: (v: number) => boolean,
+      goal: (u: number, w: number, m: number) => boolean, atStart: boolean): { nodes: number[]; marks: number[] } | null {
+    const { parent, parentMark, seen, touched, to, marks } = this
+    for (const v of touched) seen[v] = 0
+    touched.length = 0
+    const queue = new Int32Buffer()
+    for (const s of starts) {
+      if (seen[s]) continue
+      if (atStart && goal(-1, s, 0)) return { nodes: [s], marks: [] }
+      seen[s] = 1
+      touched.push(s)
+      parent[s] = -1
+      queue.push(s)
+    }
+    const path = (u: number, w: number, m: number) => {
+      const nodes = [w], ms = [m]
+      for (let v = u; v >= 0; v = parent[v]) { nodes.push(v); if (parent[v] >= 0) ms.push(parentMark[v]) }
+      return { nodes: nodes.reverse(), marks: ms.reverse() }
+    }
+    for (let h = 0; h < queue.length; h++) {
+      const u = queue.data[h]
+      to.length = 0
+      marks.length = 0
+      g.successors(u, to, marks)
+      for (let i = 0; i < to.length; i++) {
+        const w = to[i], m = marks[i] | 0
+        if (!allowed(w)) continue
+        if (goal(u, w, m)) return path(u, w, m)
+        if (!seen[w]) {
+          seen[w] = 1
+          touched.push(w)
+          parent[w] = u
+          parentMark[w] = m
+          queue.push(w)
+        }
+      }
+    }
+    return null
+  }
+}

@@ -1,0 +1,124 @@
+// The on-the-fly product of a system (an instance under fairness) with the automaton of a
+// negated property, as a marked graph for the emptiness check. An accepting lasso of the product
+// is a fair run of the system that violates the property.
+//
+// Label convention: a product node (s, q) exists only when q's label holds of the atoms of s, so
+// the automaton reads each system state when it is paired with it, starting with the initial
+// state. An edge (s, q) -> (s', q') exists for every system edge s -> s' and automaton edge
+// q -> q' with the label of q' holding of s'. Its marks are the system edge's fairness marks
+// (bits 0..f-1) together with q's acceptance sets shifted above them (bits f..f+a-1): q's sets,
+// the source's, are the automaton's transition marks (see automaton.ts).
+import { type Automaton, allAcceptance, labelHolds, ltlToAutomaton } from './automaton'
+import { type EmptinessOptions, type MarkedGraph, findAcceptingLasso } from './emptiness'
+import { type Ltl, not } from './ltl'
+import { PairMap } from './pairmap'
+
+/** A system explored on the fly: states are integer ids the system assigns. */
+export interface System {
+  /** The initial state ids. */
+  initial(): number[]
+  /** Appends the successors of `s` to `to` and the fairness marks of each edge (bits 0..f-1) to `fair`. */
+  successors(s: number, to: number[], fair: number[]): void
+  /** The mask of the atoms that hold in state s (bit i = atom i). */
+  atoms(s: number): number
+  /** f: the number of fairness sets; a fair run passes infinitely often through edges marked with each. */
+  fairnessSets: number
+}
+
+/** The product graph, with a way back from node ids to (system state, automaton state). */
+export type ProductGraph = MarkedGraph & {
+  decode(node: number): { state: number; automaton: number }
+  /** Number of product nodes numbered so far. */
+  readonly size: number
+  /** Mask of every mark of the product: all fairness sets and all acceptance sets. */
+  readonly allMarks: number
+}
+
+/** The product of `sys` with `aut`; see the file comment for the label and mark conventions. */
+export function productGraph(sys: System, aut: Automaton): ProductGraph {
+  const f = sys.fairnessSets
+  if (f + aut.acceptanceSets > 31) {
+    throw new Error(`${f} fairness sets and ${aut.acceptanceSets} acceptance sets exceed the 31 marks the product supports`)
+  }
+  const pairs = new PairMap()
+  const { succStart, succ, accept } = aut
+  const to: number[] = [], fair: number[] = []
+  const allMarks = ((f === 0 ? 0 : 2 ** f - 1) | (allAcceptance(aut) << f)) | 0
+  return {
+    allMarks,
+    get size() { return pairs.size },
+    initial() {
+      const ids: number[] = []
+      for (const s of sys.initial()) {
+        const a = sys.atoms(s)
+        for (let i = 0; i < aut.initial.length; i++) {
+          const q = aut.initial[i]
+          if (labelHolds(aut, q, a)) ids.push(pairs.id(s, q))
+        }
+      }
+      return ids
+    },
+    successors(node, out, marks) {
+      const s = pairs.first.data[node], q = pairs.second.data[node]
+      const acc = accept[q] << f
+      to.length = 0
+      fair.length = 0
+      sys.successors(s, to, fair)
+      const from = succStart[q], end = succStart[q + 1]
+      for (let i = 0; i < to.length; i++) {
+        const t = to[i]
+        const a = sys.atoms(t)
+        const m = (fair[i] | acc) | 0
+        for (let j = from; j < end; j++) {
+          const r = succ[j]
+          if (labelHolds(aut, r, a)) {
+            out.push(pairs.id(t, r))
+            marks.push(m)
+          }
+        }
+      }
+    },
+    decode(node) {
+      return { state: pairs.first.data[node], automaton: pairs.second.data[node] }
+    },
+  }
+}
+
+/** The verdict of `checkLtl`. `nodes` and `edges` count the product explored. */
+export type LtlVerdict =
+  | { holds: true; stopped: false; nodes: number; edges: number }
+  | {
+      holds: false
+      stopped: false
+      /** System states of the counterexample: prefix, then the cycle repeated forever (as in `Lasso`). */
+      prefix: number[]
+      cycle: number[]
+      /** Fairness marks of each cycle edge, cycle[i] to cycle[(i+1) % k]; together they cover every fairness set. */
+      cycleFairness: number[]
+      nodes: number
+      edges: number
+    }
+  | { holds: null; stopped: true; nodes: number; edges: number }
+
+/**
+ * Whether every fair run of `sys` satisfies `formula`: builds the automaton of its negation,
+ * then searches the product for a fair accepting lasso (Couvreur, FM'99). A violation comes with
+ * its lasso of system states, starting in an initial state.
+ */
+export function checkLtl(sys: System, formula: Ltl, opts: EmptinessOptions = {}): LtlVerdict {
+  const aut = ltlToAutomaton(not(formula))
+  const g = productGraph(sys, aut)
+  const r = findAcceptingLasso(g, g.allMarks, opts)
+  if (r.kind === 'empty') return { holds: true, stopped: false, nodes: r.nodes, edges: r.edges }
+  if (r.kind === 'stopped') return { holds: null, stopped: true, nodes: r.nodes, edges: r.edges }
+  const fairMask = sys.fairnessSets === 0 ? 0 : (2 ** sys.fairnessSets - 1) | 0
+  return {
+    holds: false,
+    stopped: false,
+    prefix: r.prefix.map((n) => g.decode(n).state),
+    cycle: r.cycle.map((n) => g.decode(n).state),
+    cycleFairness: r.cycleMarks.map((m) => m & fairMask),
+    nodes: r.nodes,
+    edges: r.edges,
+  }
+}

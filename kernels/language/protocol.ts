@@ -89,7 +89,9 @@ class ProtocolResolver {
     let faultsSeen: SyntaxNode | null = null
     let stepSeen: SyntaxNode | null = null
     for (const d of decls) {
-      if (d.type.isError || hasError(d)) continue
+      if (d.type.isError) continue
+      // Blocks with a syntax error are still read statement by statement; other declarations are skipped.
+      if (d.name !== 'StepBlock' && d.name !== 'Handler' && hasError(d)) continue
       switch (d.name) {
         case 'ConstDecl': this.constDecl(d); break
         case 'MessageDecl': this.messageDecl(d); break
@@ -249,14 +251,22 @@ class ProtocolResolver {
     const type = tnode ? this.type(tnode, `\`${name}\``) : null
     if (!this.declareName(id, 'variable')) return
     if (!type) return
-    let init: Expr | 'any' = 'any'
-    if (!d.getChild('Any')) {
+    const init = d.getChild('Any') ? 'any' : this.initValue(d, name, type)
+    // A variable whose initial value is wrong is still declared, so that its uses are not
+    // reported as unknown; the protocol cannot run until the error is fixed.
+    if (init === null) this.broken = true
+    this.vars.push({ name, perPeer, type, init: init ?? 'any', span: ctx.span(id) })
+  }
+
+  private initValue(d: SyntaxNode, name: string, type: Type): Expr | null {
+    const { ctx } = this
+    {
       const [initNode] = expressionChildren(d)
       const typed = this.expr(initNode, { constOnly: true, binders: new Map(), fields: new Map(), what: 'an initial value' }, sortOf(type))
-      if (!typed) return
+      if (!typed) return null
       if (!sameSort(typed.sort, sortOf(type))) {
         ctx.error(initNode, `the initial value of \`${name}\` is ${sortName(typed.sort)}, but \`${name}\` holds ${sortName(sortOf(type))}; give a value of its type`)
-        return
+        return null
       }
       if (type.k === 'range') {
         try {
@@ -265,17 +275,16 @@ class ProtocolResolver {
           const hi = evalConstant(type.hi, this.constValues)
           if (v < lo || v > hi) {
             ctx.error(initNode, `the initial value ${v} of \`${name}\` is outside its type ${lo}..${hi}; choose a value inside the range`)
-            return
+            return null
           }
         } catch (e) {
           if (!(e instanceof ConstantError)) throw e
           ctx.error(initNode, `the initial value of \`${name}\` divides by zero; fix the expression`)
-          return
+          return null
         }
       }
-      init = typed.e
+      return typed.e
     }
-    this.vars.push({ name, perPeer, type, init, span: ctx.span(id) })
   }
 
   private timingDecl(d: SyntaxNode): void {
@@ -436,7 +445,7 @@ class ProtocolResolver {
       case 'Assign': {
         const tnode = children(s).find((c) => c.name === 'VarRef' || c.name === 'IndexRef')!
         const t = this.target(tnode, scope)
-        const valueNode = expressionChildren(s).filter((c) => c !== tnode)[0]
+        const valueNode = expressionChildren(s).filter((c) => c.from !== tnode.from)[0]
         const v = this.expr(valueNode, scope, t?.sort)
         if (!t || !v) return null
         if (!sameSort(t.sort, v.sort)) {

@@ -14,7 +14,7 @@ function distance(a: string, b: string): number {
 }
 
 /**
- * The "; did you mean `x`?" tail of a diagnostic, or "" when no candidate is close enough.
+ * The " (did you mean `x`?)" tail of a diagnostic, or "" when no candidate is close enough.
  * Close means at most one edit for short names and two for longer ones.
  */
 export function didYouMean(name: string, candidates: Iterable<string>): string {
@@ -26,5 +26,5 @@ export function didYouMean(name: string, candidates: Iterable<string>): string {
     const d = distance(name, c)
     if (d < bestDistance || (d === bestDistance && best !== null && c < best)) { best = c; bestDistance = d }
   }
-  return best !== null && bestDistance <= allowed ? `; did you mean \`${best}\`?` : ''
+  return best !== null && bestDistance <= allowed ? ` (did you mean \`${best}\`?)` : ''
 }

@@ -17,8 +17,8 @@ export interface CheckFlags {
   shard?: string
 }
 
-/** Runs `twofold check` and returns its exit code. */
-export async function runCheck(io: CliIo, kernel: RecordKernel, path: string, flags: CheckFlags): Promise<number> {
+/** Runs `twofold check` and returns its exit code. The kernel is loaded only once the inputs are known to be usable. */
+export async function runCheck(io: CliIo, loadKernel: () => Promise<RecordKernel>, path: string, flags: CheckFlags): Promise<number> {
   let shard: Shard | undefined
   try {
     shard = flags.shard === undefined ? undefined : parseShard(flags.shard)
@@ -27,6 +27,7 @@ export async function runCheck(io: CliIo, kernel: RecordKernel, path: string, fl
     throw e
   }
   const text = await readInput(io, path, 'notebook', REFUSED)
+  const kernel = await loadKernel()
   const model = await kernel.analyzeNotebook(text)
   const hasErrors = model.diagnostics.some((d) => d.severity === 'error')
   if (flags.only !== undefined && !hasErrors) {

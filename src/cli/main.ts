@@ -43,7 +43,7 @@ export async function main(argv: string[], io: CliIo): Promise<number> {
         'was checked), or it cannot be read; 3 nothing violated but something inconclusive or in error.',
     )
     .action(async (notebook: string, flags: CheckFlags) => {
-      code = await runCheck(io, await kernel(), notebook, flags)
+      code = await runCheck(io, kernel, notebook, flags)
     })
 
   program
@@ -57,7 +57,7 @@ export async function main(argv: string[], io: CliIo): Promise<number> {
         "notebook's hash differs from the record's, or the record is malformed, truncated or unreadable.",
     )
     .action(async (record: string, notebook: string | undefined) => {
-      code = await runReplay(io, await kernel(), record, notebook)
+      code = await runReplay(io, kernel, record, notebook)
     })
 
   program

@@ -9,8 +9,8 @@ import { HOLDS, REFUSED, VIOLATED } from './exit'
 import { readInput, readRecordFile, type CliIo } from './io'
 import { progressLine } from './progress'
 
-/** Runs `twofold replay` and returns its exit code. */
-export async function runReplay(io: CliIo, kernel: RecordKernel, recordPath: string, notebookPath?: string): Promise<number> {
+/** Runs `twofold replay` and returns its exit code. The kernel is loaded only once the record and notebook are read. */
+export async function runReplay(io: CliIo, loadKernel: () => Promise<RecordKernel>, recordPath: string, notebookPath?: string): Promise<number> {
   const record = await readRecordFile(io, recordPath)
   // The record names its notebook relative to where it was checked; a reviewer usually replays from
   // the same directory, else the notebook may sit beside the record.
@@ -21,6 +21,7 @@ export async function runReplay(io: CliIo, kernel: RecordKernel, recordPath: str
     path = existsSync(fromCwd) || !existsSync(besideRecord) ? record.notebook.path : besideRecord
   }
   const text = await readInput(io, path, 'notebook', REFUSED)
+  const kernel = await loadKernel()
 
   const progress = progressLine(io)
   let outcome

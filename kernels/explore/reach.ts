@@ -1,0 +1,248 @@
+// Breadth-first reachability over packed states, with an optional invariant.
+//
+// States are numbered in the order they are found, so each BFS level is a contiguous range of
+// indices and only the level boundaries are kept: a trace is rebuilt backwards by re-expanding the
+// previous level until a state reaches the current one. That costs a few levels of recomputation
+// once, at a violation, and saves a parent link per state (memory is the packed states plus the
+// hash table, nothing else per state).
+import { canonicalState } from '../model/decode'
+import type { ModelError } from '../model/errors'
+import type { Instance } from '../model/instance'
+import { StateStore } from './stateset'
+
+/** Progress of a running exploration (reported at most every 100 ms). */
+export interface ExploreProgress {
+  states: number
+  transitions: number
+  statesPerSecond: number
+  seconds: number
+}
+
+export interface ExploreOptions {
+  /** Stop (incomplete, `limitHit`) rather than store more than this many states. */
+  limit?: number
+  /** Checked on every state found, initial ones included; false stops with the shortest trace. */
+  invariant?: (w: Uint32Array, off: number) => boolean
+  /** Polled regularly; true stops the exploration (`stopped`, incomplete). */
+  shouldStop?: () => boolean
+  onProgress?: (p: ExploreProgress) => void
+  /**
+   * Skip erroring branches and go on (for differential counts); the first error is still reported
+   * (outcome 'model-error', with its trace). Default: stop at the first error.
+   */
+  continueOnError?: boolean
+}
+
+export interface ExploreResult {
+  /** Distinct states stored (all reachable ones when complete). */
+  states: number
+  /** Distinct (source, target) pairs among expanded sources; a model error is not a transition. */
+  transitions: number
+  /** True when every reachable state was found and expanded with no violation and no error. */
+  complete: boolean
+  stopped: boolean
+  limitHit: boolean
+  outcome: 'ok' | 'violation' | 'model-error'
+  /** Store indices from an initial state to the violating state, or to the state whose step erred. */
+  trace: number[] | null
+  error: ModelError | null
+  /** The states found; state ids are store indices. */
+  store: StateStore
+  seconds: number
+  /** Bytes held by the store (arena and hash table) per state. */
+  bytesPerState: number
+}
+
+/**
+ * Distinct targets of one source: an open-addressing set of store indices whose slots are
+ * invalidated by bumping a stamp, so starting a new source costs nothing.
+ */
+class TargetSet {
+  private keys = new Int32Array(64)
+  private stamps = new Int32Array(64)
+  private list: number[] = []
+  private stamp = 1
+  private size = 0
+
+  reset(): void {
+    this.stamp++
+    this.size = 0
+    this.list.length = 0
+  }
+
+  /** True when idx was not yet a target of this source. */
+  add(idx: number): boolean {
+    let mask = this.keys.length - 1
+    let slot = Math.imul(idx, 0x9e3779b1) >>> 7 & mask
+    while (this.stamps[slot] === this.stamp) {
+      if (this.keys[slot] === idx) return false
+      slot = (slot + 1) & mask
+    }
+    this.keys[slot] = idx
+    this.stamps[slot] = this.stamp
+    this.list.push(idx)
+    if (++this.size * 2 > this.keys.length) {
+      const old = this.list.slice()
+      this.keys = new Int32Array(this.keys.length * 2)
+      this.stamps = new Int32Array(this.keys.length)
+      this.stamp = 1
+      mask = this.keys.length - 1
+      for (const k of old) {
+        let s = Math.imul(k, 0x9e3779b1) >>> 7 & mask
+        while (this.stamps[s] === this.stamp) s = (s + 1) & mask
+        this.keys[s] = k
+        this.stamps[s] = this.stamp
+      }
+    }
+    return true
+  }
+}
+
+/** Explores the instance breadth-first from its initial states. */
+export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResult {
+  const t0 = performance.now()
+  const W = inst.words
+  const limit = opts.limit ?? Infinity
+  const invariant = opts.invariant
+  const store = new StateStore(W, 1024)
+  const levelStart: number[] = [0]
+  let transitions = 0
+  let halted = false
+  let limitHit = false
+  let stopped = false
+  let violation = -1
+  let error: ModelError | null = null
+  let errorSource = -1
+
+  const init = inst.initialStates()
+  for (let off = 0; off < init.length && !halted; off += W) {
+    if (store.lookup(init, off) >= 0) continue
+    if (store.size >= limit) {
+      limitHit = halted = true
+      break
+    }
+    const idx = store.insert(init, off)
+    if (invariant && !invariant(init, off)) {
+      violation = idx
+      halted = true
+    }
+  }
+
+  const seen = new TargetSet()
+  const emit = (dst: Uint32Array): boolean => {
+    let idx = store.lookup(dst, 0)
+    if (idx < 0) {
+      if (store.size >= limit) {
+        limitHit = halted = true
+        return true
+      }
+      idx = store.insert(dst, 0)
+      if (seen.add(idx)) transitions++
+      if (invariant && !invariant(dst, 0)) {
+        violation = idx
+        halted = true
+        return true
+      }
+      return false
+    }
+    if (seen.add(idx)) transitions++
+    return false
+  }
+
+  const src = new Uint32Array(W)
+  let head = 0
+  let levelEnd = store.size
+  let lastReport = t0
+  let sinceCheck = 0
+  let transitionsAtCheck = 0
+  while (!halted && head < store.size) {
+    if (head === levelEnd) {
+      levelStart.push(head)
+      levelEnd = store.size
+    }
+    store.get(head, src, 0)
+    seen.reset()
+    const err = inst.successors(src, 0, emit)
+    if (err && !halted && !error) {
+      error = err
+      errorSource = head
+      if (!opts.continueOnError) halted = true
+    }
+    head++
+    if (++sinceCheck >= 64 || transitions - transitionsAtCheck >= 4096) {
+      sinceCheck = 0
+      transitionsAtCheck = transitions
+      if (opts.shouldStop && opts.shouldStop()) {
+        stopped = halted = true
+        break
+      }
+      if (opts.onProgress) {
+        const now = performance.now()
+        if (now - lastReport >= 100) {
+          lastReport = now
+          const seconds = (now - t0) / 1000
+          opts.onProgress({ states: store.size, transitions, statesPerSecond: seconds > 0 ? store.size / seconds : 0, seconds })
+        }
+      }
+    }
+  }
+
+  // States found while expanding the last level started the next one.
+  if (levelStart[levelStart.length - 1] < levelEnd && levelEnd < store.size) levelStart.push(levelEnd)
+  let outcome: ExploreResult['outcome'] = 'ok'
+  let trace: number[] | null = null
+  if (violation >= 0) {
+    outcome = 'violation'
+    trace = traceTo(inst, store, levelStart, violation)
+  } else if (error) {
+    outcome = 'model-error'
+    trace = traceTo(inst, store, levelStart, errorSource)
+  }
+  const seconds = (performance.now() - t0) / 1000
+  return {
+    states: store.size, transitions, complete: !halted, stopped, limitHit, outcome, trace, error, store, seconds,
+    bytesPerState: store.size > 0 ? store.bytes / store.size : 0,
+  }
+}
+
+/**
+ * The shortest path (store indices) from an initial state to `target`: walks the levels back,
+ * taking in each the first state (in index order) that has the current one as a successor.
+ */
+function traceTo(inst: Instance, store: StateStore, levelStart: number[], target: number): number[] {
+  const W = inst.words
+  // The level of the target: the last level that starts at or before it.
+  let level = 0
+  while (level + 1 < levelStart.length && levelStart[level + 1] <= target) level++
+  const path = [target]
+  const src = new Uint32Array(W)
+  let cur = target
+  for (let L = level; L > 0; L--) {
+    const from = levelStart[L - 1]
+    const to = levelStart[L]
+    let parent = -1
+    for (let s = from; s < to && parent < 0; s++) {
+      store.get(s, src, 0)
+      inst.successors(src, 0, (dst) => {
+        if (store.lookup(dst, 0) === cur) {
+          parent = s
+          return true
+        }
+        return false
+      })
+    }
+    if (parent < 0) throw new Error('trace reconstruction lost its way: a state without a parent in the previous level')
+    path.push(parent)
+    cur = parent
+  }
+  return path.reverse()
+}
+
+/** Every reachable state in canonical form (DEVELOPERS.md), for differential tests. */
+export function reachableCanonical(inst: Instance, limit?: number): { states: Set<string>; transitions: number; complete: boolean; modelError: ModelError | null } {
+  const r = explore(inst, { limit, continueOnError: true })
+  const states = new Set<string>()
+  const data = r.store.data
+  for (let k = 0; k < r.states; k++) states.add(canonicalState(inst, data, k * inst.words))
+  return { states, transitions: r.transitions, complete: r.complete, modelError: r.error }
+}

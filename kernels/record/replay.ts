@@ -1,7 +1,7 @@
 // Replay: read a record back, run its checks again and say, field by field, what is different.
 // Every field is compared except the times (each row's `seconds` and the record's `created`): a
 // check that explores the same states must find the same counts, verdicts and counterexamples.
-import type { CheckRow } from '../result'
+import type { CheckRow, Progress } from '../result'
 import { canonicalJson } from './canonical'
 import { isSha256Hex, sha256Hex } from './hash'
 import type { RecordKernel } from './kernel'
@@ -156,7 +156,7 @@ export async function replayRecord(
   record: VerificationRecord,
   text: string,
   kernel: RecordKernel,
-  onProgress?: Parameters<RecordKernel['runNotebook']>[2]['onProgress'],
+  onProgress?: (progress: Progress) => void,
 ): Promise<ReplayOutcome> {
   const actual = await sha256Hex(text)
   if (actual !== record.notebook.sha256) return { kind: 'notebook-changed', recorded: record.notebook.sha256, actual }

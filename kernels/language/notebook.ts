@@ -24,19 +24,21 @@ const markdown = new MarkdownIt('commonmark')
 function frontMatter(text: string, lines: LineMap, diagnostics: Diagnostic[]): { title: string | null; body: string } {
   if (!/^---[ \t]*\r?\n/.test(text)) return { title: null, body: text }
   let title: string | null = null
+  const lineErrors: Diagnostic[] = []
   for (let line = 2; line <= lines.lines; line++) {
     const from = lines.lineStart(line)
     const content = text.slice(from, lines.lineEnd(line)).replace(/\r$/, '')
     if (/^---[ \t]*$/.test(content)) {
       const end = lines.lineEnd(line)
       const body = text.slice(0, end).replace(/[^\n]/g, ' ') + text.slice(end)
+      diagnostics.push(...lineErrors)
       return { title, body }
     }
     const m = /^([A-Za-z_][\w-]*)[ \t]*:[ \t]*(.*)$/.exec(content)
     if (m) {
       if (m[1] === 'title') title = m[2].trim().replace(/^(["'])(.*)\1$/, '$2')
     } else if (content.trim() !== '') {
-      diagnostics.push({
+      lineErrors.push({
         ...lines.span(from, from + content.length), severity: 'error',
         message: 'front matter lines must read `key: value`; write this line as `title: ...` or remove it',
       })

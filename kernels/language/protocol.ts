@@ -302,28 +302,36 @@ class ProtocolResolver {
       return
     }
     const got: Record<string, Expr> = {}
+    // After a faulty parameter, a "missing parameter" error would only repeat it.
+    let faulty = false
     for (const p of params?.getChildren('Param') ?? []) {
       const pid = p.getChild('Identifier')!
       const pname = ctx.text(pid)
       if (pname !== 'delay' && pname !== 'idle') {
-        ctx.error(pid, `\`timing ${kind}\` has the parameters \`delay\` and \`idle\`, not \`${pname}\`${didYouMean(pname, ['delay', 'idle'])}`)
+        ctx.error(pid, `\`timing ${kind}\` has the parameters \`delay\` and \`idle\`, not \`${pname}\`${didYouMean(pname, ["delay", "idle"])}; write \`delay: D, idle: I\``)
+        faulty = true
         continue
       }
       if (got[pname]) { ctx.error(pid, `the timing parameter \`${pname}\` is given twice; keep one`); continue }
       const e = this.intExpr(expressionChildren(p)[0], { constOnly: true, binders: new Map(), fields: new Map(), what: 'a timing parameter' })
-      if (!e) continue
+      if (!e) { faulty = true; continue }
       try {
         const v = evalConstant(e, this.constValues)
-        if (v < 1) { ctx.error(p, `the timing parameter \`${pname}\` is ${v}, but it must be at least 1; give a positive bound`); continue }
+        if (v < 1) {
+          ctx.error(p, `the timing parameter \`${pname}\` is ${v}, but it must be at least 1; give a positive bound`)
+          faulty = true
+          continue
+        }
       } catch (err) {
         if (!(err instanceof ConstantError)) throw err
         ctx.error(p, `the timing parameter \`${pname}\` divides by zero; fix the expression`)
+        faulty = true
         continue
       }
       got[pname] = e
     }
     for (const need of ['delay', 'idle']) {
-      if (!got[need] && !this.broken) {
+      if (!got[need] && !this.broken && !faulty) {
         ctx.error(d, `\`timing ${kind}\` needs the parameter \`${need}\`; write \`timing ${kind}(delay: D, idle: I)\``)
       }
     }

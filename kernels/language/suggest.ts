@@ -1,16 +1,14 @@
-/** Edit distance (Levenshtein), used only to suggest a near name in a diagnostic. */
+/** Edit distance with adjacent transpositions (optimal string alignment), used only to suggest a near name. */
 function distance(a: string, b: string): number {
-  const row = Array.from({ length: b.length + 1 }, (_, i) => i)
+  const d: number[][] = Array.from({ length: a.length + 1 }, (_, i) => Array.from({ length: b.length + 1 }, (_, j) => (i === 0 ? j : j === 0 ? i : 0)))
   for (let i = 1; i <= a.length; i++) {
-    let prev = row[0]
-    row[0] = i
     for (let j = 1; j <= b.length; j++) {
-      const keep = row[j]
-      row[j] = Math.min(row[j] + 1, row[j - 1] + 1, prev + (a[i - 1] === b[j - 1] ? 0 : 1))
-      prev = keep
+      const cost = a[i - 1] === b[j - 1] ? 0 : 1
+      d[i][j] = Math.min(d[i - 1][j] + 1, d[i][j - 1] + 1, d[i - 1][j - 1] + cost)
+      if (i > 1 && j > 1 && a[i - 1] === b[j - 2] && a[i - 2] === b[j - 1]) d[i][j] = Math.min(d[i][j], d[i - 2][j - 2] + 1)
     }
   }
-  return row[b.length]
+  return d[a.length][b.length]
 }
 
 /**

@@ -31,7 +31,8 @@ export class BlockContext {
 
   private report(severity: Diagnostic['severity'], at: SyntaxNode | Span | { from: number; to: number }, message: string): void {
     const span = 'line' in at ? at : this.span(at)
-    this.diagnostics.push({ ...span, severity, message })
+    // Messages quote source text; a diagnostic is one line, so quoted line breaks are folded.
+    this.diagnostics.push({ ...span, severity, message: message.replace(/\s*\n\s*/g, ' ') })
   }
 }
 

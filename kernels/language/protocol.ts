@@ -112,7 +112,7 @@ class ProtocolResolver {
     }
     for (const d of later) {
       if (d.name === 'Handler') this.handler(d)
-      else if (d === stepSeen) this.step = this.block(d.getChild('Block')!, { constOnly: false, binders: new Map(), fields: new Map() })
+      else if (d === stepSeen && d.getChild('Block')) this.step = this.block(d.getChild('Block')!, { constOnly: false, binders: new Map(), fields: new Map() })
     }
     if (!this.timing) {
       this.timing = { kind: 'asynchronous', span: ctx.span(nameNode) }
@@ -343,6 +343,8 @@ class ProtocolResolver {
     const { ctx } = this
     const ids = d.getChildren('Identifier')
     const [msgNode, peerNode] = ids
+    // A handler broken by a syntax error is read only when its shape survived the recovery.
+    if (!peerNode || !d.getChild('Block') || !d.getChild('from')) return
     const msgName = ctx.text(msgNode)
     const message = this.messages.findIndex((m) => m.name === msgName)
     if (message < 0) {

@@ -134,8 +134,8 @@ export function counterexampleSvg(cx: Counterexample, processes: number, opts: D
   return html`<svg xmlns="http://www.w3.org/2000/svg" class="spacetime" role="img" width="${width}" height="${height}" viewBox="0 0 ${width} ${height}"><title>${title}</title><defs><marker id="arrowhead" viewBox="0 0 10 10" refX="9" refY="5" markerWidth="7" markerHeight="7" orient="auto-start-reverse"><path d="M 0 0 L 10 5 L 0 10 z" fill="#2f5d50" /></marker></defs><style>${raw(DIAGRAM_CSS)}</style>${parts}</svg>`.text
 }
 
-/** The diagram's own styles, inlined so that the SVG also reads well inside the exported report. */
-const DIAGRAM_CSS = [
+/** The diagram's own styles: inlined in the SVG, and added to the page and the report (sanitizing drops the inline copy). */
+export const DIAGRAM_CSS = [
   '.spacetime text{font:12px Georgia,serif;fill:#2a2a28}',
   '.spacetime .lane{stroke:#55534d;stroke-width:1.5}',
   '.spacetime .lane-dead{stroke:#b9b4a8;stroke-width:1.5;stroke-dasharray:3 4}',

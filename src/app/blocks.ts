@@ -1,0 +1,250 @@
+// The views of the notebook's blocks: prose (rendered, edited as Markdown on demand) and formal
+// blocks (a CodeMirror editor, its diagnostics, typeset properties, and for checks the findings).
+// A view holds its segment (offsets into the notebook text) and reports edits to its host; it
+// never keeps a copy of the text that could drift from the notebook.
+import type { CheckRow, Progress } from '../../kernels/result'
+import { button, el } from './dom'
+import { BlockEditor, type NotebookDiagnostic } from './editor'
+import { propertiesToTex } from './formula-tex'
+import { renderProse, toFragment } from './markdown'
+import { CAUTION, findingsMarkup } from './results'
+import type { Segment, SegmentKind } from './segments'
+import { texToHtml } from './tex'
+
+/** What a block view asks of the workbench. */
+export interface BlockHost {
+  /** The notebook text now. */
+  text(): string
+  /** The block's content changed to `content`. */
+  edited(view: BlockView, content: string): void
+  /** A prose block left editing (its segment may now split or merge). */
+  proseDone(view: BlockView): void
+  move(view: BlockView, direction: -1 | 1): void
+  remove(view: BlockView): void
+  addAfter(view: BlockView, kind: Exclude<SegmentKind, 'front'>): void
+  /** The notebook line number of an offset. */
+  lineOf(offset: number): number
+  runCheck(check: number): void
+  stop(): void
+}
+
+/** Either kind of block view. */
+export type BlockView = ProseView | FormalView
+
+function describeBlock(kind: SegmentKind, content: string): string {
+  if (kind === 'protocol') return /protocol\s+([A-Za-z_]\w*)/.exec(content)?.[1] ?? ''
+  if (kind === 'property') return [...content.matchAll(/^\s*property\s+([A-Za-z_]\w*)/gm)].map((m) => m[1]).join(', ')
+  if (kind === 'check') return [...new Set([...content.matchAll(/^\s*check\s+([A-Za-z_]\w*)/gm)].map((m) => m[1]))].join(', ')
+  return ''
+}
+
+const KIND_WORDS: Record<SegmentKind, string> = { front: 'front matter', prose: 'text', protocol: 'protocol', property: 'properties', check: 'checks' }
+
+function tools(host: BlockHost, view: BlockView, kind: SegmentKind, name: () => string): HTMLElement {
+  const label = () => `${KIND_WORDS[kind]} block${name() ? ' ' + name() : ''}`
+  const add = el('details', { class: 'add' },
+    el('summary', { 'aria-label': 'insert a block after this one' }, 'insert after'),
+    el('div', { class: 'add-menu' },
+      ...(['prose', 'protocol', 'property', 'check'] as const).map((k) =>
+        button(KIND_WORDS[k], (e) => { (e.currentTarget as HTMLElement).closest('details')!.open = false; host.addAfter(view, k) }, { 'aria-label': `insert a ${KIND_WORDS[k]} block after this one` }))))
+  const bar = el('div', { class: 'block-tools' },
+    button('↑', () => host.move(view, -1), { 'aria-label': 'move this block up', title: 'move up' }),
+    button('↓', () => host.move(view, 1), { 'aria-label': 'move this block down', title: 'move down' }),
+    button('remove', () => host.remove(view), { 'aria-label': 'remove this block' }),
+    add)
+  bar.setAttribute('aria-label', 'block controls')
+  bar.addEventListener('focusin', () => bar.setAttribute('aria-label', `controls of the ${label()}`))
+  return bar
+}
+
+/** A prose block: Markdown shown rendered; editing swaps in a text area until done. */
+export class ProseView {
+  readonly kind = 'prose' as const
+  readonly root: HTMLElement
+  private shown = el('div', { class: 'prose-rendered' })
+  private area: HTMLTextAreaElement | null = null
+
+  constructor(private host: BlockHost, public seg: Segment, readonly front = false) {
+    this.root = el('section', { class: front ? 'block block-front' : 'block block-prose' })
+    this.shown.tabIndex = 0
+    this.shown.setAttribute('role', 'region')
+    this.shown.setAttribute('aria-label', front ? 'front matter (press Enter to edit)' : 'text block (press Enter to edit)')
+    this.shown.addEventListener('dblclick', () => this.edit())
+    this.shown.addEventListener('keydown', (e) => { if (e.key === 'Enter' && e.target === this.shown) { e.preventDefault(); this.edit() } })
+    const editButton = button('edit', () => this.edit(), { class: 'edit-prose', 'aria-label': front ? 'edit the front matter' : 'edit this text' })
+    this.root.append(front ? el('div', { class: 'block-tools' }, editButton) : tools(host, this, 'prose', () => ''), this.shown)
+    if (!front) this.root.querySelector('.block-tools')!.prepend(editButton)
+    this.render()
+  }
+
+  private content(): string {
+    return this.host.text().slice(this.seg.contentFrom, this.seg.contentTo)
+  }
+
+  /** Renders the Markdown (sanitized) into the block. */
+  render(): void {
+    const src = this.content()
+    if (this.front) {
+      this.shown.replaceChildren(el('pre', { class: 'front-text' }, src.trim()))
+      return
+    }
+    this.shown.replaceChildren(toFragment(renderProse(src)))
+    if (!src.trim()) this.shown.append(el('p', { class: 'quiet' }, 'Empty text block.'))
+  }
+
+  get editing(): boolean { return this.area !== null }
+
+  /** Switches to the Markdown source. */
+  edit(): void {
+    if (this.area) return
+    const area = el('textarea', { class: 'prose-source', 'aria-label': this.front ? 'front matter source' : 'Markdown source of this text block', spellcheck: 'true' })
+    area.value = this.content()
+    const fit = () => { area.style.height = 'auto'; area.style.height = area.scrollHeight + 4 + 'px' }
+    area.addEventListener('input', () => { this.host.edited(this, area.value); fit() })
+    area.addEventListener('keydown', (e) => { if (e.key === 'Escape') { e.preventDefault(); this.done() } })
+    area.addEventListener('blur', () => this.done())
+    this.area = area
+    this.shown.replaceWith(area)
+    fit()
+    area.focus()
+  }
+
+  /** Leaves the source and shows the rendered text again. */
+  done(): void {
+    if (!this.area) return
+    const area = this.area
+    this.area = null
+    area.replaceWith(this.shown)
+    this.render()
+    this.host.proseDone(this)
+  }
+
+  moved(): void {}
+  destroy(): void {}
+}
+
+/** The status and findings of one check line inside a check block. */
+export class CheckLineView {
+  readonly root: HTMLElement
+  private status = el('span', { class: 'check-status', role: 'status', 'aria-live': 'polite' })
+  private findings = el('div', { class: 'check-findings' })
+  private runButton: HTMLButtonElement
+  private stopButton: HTMLButtonElement
+  private staleNote = el('p', { class: 'stale-note' }, 'Out of date: the check, its protocol or a property it uses changed since this ran.')
+
+  constructor(host: BlockHost, readonly check: number, source: string) {
+    this.runButton = button('check it', () => host.runCheck(this.check), { class: 'run', 'aria-label': `run: ${source}` })
+    this.stopButton = button('stop', () => host.stop(), { class: 'stop', 'aria-label': `stop: ${source}`, hidden: true })
+    this.root = el('div', { class: 'check-line', 'data-check': String(check) },
+      el('div', { class: 'check-head' }, el('code', { class: 'check-source' }, source), this.runButton, this.stopButton, this.status),
+      this.staleNote, this.findings)
+    this.staleNote.hidden = true
+  }
+
+  /** Shows rows (or nothing yet), fresh or out of date. */
+  show(rows: CheckRow[] | null, fresh: boolean): void {
+    this.root.classList.toggle('stale', !!rows && !fresh)
+    this.root.classList.toggle('fresh', !!rows && fresh)
+    this.staleNote.hidden = !rows || fresh
+    if (!rows) {
+      this.findings.replaceChildren()
+      if (!this.root.classList.contains('running')) this.status.textContent = 'not checked yet'
+      return
+    }
+    if (!this.root.classList.contains('running')) this.status.textContent = fresh ? 'checked' : 'out of date'
+    this.findings.replaceChildren(toFragment(findingsMarkup(rows)), el('p', { class: 'caution' }, CAUTION))
+    for (const tr of this.findings.querySelectorAll<HTMLElement>('tr[data-tick]')) tr.tabIndex = 0
+  }
+
+  /** Marks the shown rows out of date at once (before the kernel has re-read the notebook). */
+  markStale(): void {
+    if (!this.root.classList.contains('fresh')) return
+    this.root.classList.replace('fresh', 'stale')
+    this.staleNote.hidden = false
+    if (!this.root.classList.contains('running')) this.status.textContent = 'out of date'
+  }
+
+  setRunnable(ok: boolean, why: string): void {
+    this.runButton.disabled = !ok
+    this.runButton.title = ok ? '' : why
+  }
+
+  running(on: boolean, text = ''): void {
+    this.root.classList.toggle('running', on)
+    this.runButton.hidden = on
+    this.stopButton.hidden = !on
+    this.status.textContent = text
+  }
+
+  progress(p: Progress, rowIndex: number, rowCount: number): void {
+    const n = (x: number) => Math.round(x).toLocaleString('en-US')
+    this.status.textContent = `row ${rowIndex + 1} of ${rowCount}: ${p.property} with ${p.processes} ${p.processes === 1 ? 'process' : 'processes'} · ${n(p.states)} states · ${n(p.statesPerSecond)} states/s · ${p.seconds.toFixed(1)} s`
+  }
+
+  note(text: string): void { this.status.textContent = text }
+}
+
+/** A formal block: its editor, diagnostics list, and what its kind adds. */
+export class FormalView {
+  readonly root: HTMLElement
+  readonly editor: BlockEditor
+  private diagList = el('ul', { class: 'diagnostics', 'aria-label': 'problems in this block' })
+  private typeset: HTMLElement | null = null
+  readonly checksBox: HTMLElement | null = null
+  private nameEl = el('span', { class: 'block-name' })
+  checkLines: CheckLineView[] = []
+
+  constructor(private host: BlockHost, public seg: Segment, readonly kind: 'protocol' | 'property' | 'check', checkKeys: { key: string; run: () => boolean }[]) {
+    const content = host.text().slice(seg.contentFrom, seg.contentTo)
+    this.root = el('section', { class: `block block-formal block-${kind}` })
+    const label = el('div', { class: 'block-label' }, el('span', { class: 'block-kind' }, KIND_WORDS[kind]), this.nameEl)
+    const editorBox = el('div', { class: 'editor' })
+    const body = el('div', { class: 'formal-body' }, editorBox)
+    this.root.append(tools(host, this, kind, () => this.nameEl.textContent ?? ''), label, body, this.diagList)
+    this.diagList.hidden = true
+    this.editor = new BlockEditor(editorBox, content, {
+      onChange: (c) => host.edited(this, c),
+      firstLine: () => host.lineOf(this.seg.contentFrom),
+      label: `${KIND_WORDS[kind]} block source`,
+      keys: kind === 'check' ? checkKeys : undefined,
+    })
+    if (kind === 'property') {
+      this.typeset = el('div', { class: 'typeset', 'aria-label': 'the properties typeset' })
+      body.append(this.typeset)
+    }
+    if (kind === 'check') {
+      this.checksBox = el('div', { class: 'checks' })
+      this.root.append(this.checksBox)
+    }
+    this.refresh(content)
+  }
+
+  /** Updates what is derived from the block text alone (name, typeset formulas). */
+  refresh(content = this.host.text().slice(this.seg.contentFrom, this.seg.contentTo)): void {
+    this.nameEl.textContent = describeBlock(this.kind, content)
+    if (this.typeset) {
+      const props = propertiesToTex(content)
+      this.typeset.replaceChildren(...props.map((p) => {
+        const item = el('div', { class: 'typeset-item' }, el('span', { class: 'typeset-name' }, p.name))
+        if (p.tex) item.append(toFragment(texToHtml(p.tex)))
+        else item.append(el('span', { class: 'quiet' }, ' (not typeset until it reads as a formula)'))
+        return item
+      }))
+    }
+  }
+
+  /** The block moved in the notebook (text above it changed length or lines). */
+  moved(): void { this.editor.renumber() }
+
+  /** Shows the kernel's diagnostics for this block (notebook offsets). */
+  diagnostics(list: (NotebookDiagnostic & { line: number; column: number })[]): void {
+    this.editor.showDiagnostics(list, this.seg.contentFrom)
+    this.diagList.hidden = list.length === 0
+    this.diagList.replaceChildren(...list.map((d) => {
+      const jump = button(`line ${d.line}, column ${d.column}`, () => this.editor.jumpTo(d.from - this.seg.contentFrom), { class: 'jump-inline' })
+      return el('li', { class: `diag diag-${d.severity}` }, jump, ` ${d.severity === 'error' ? 'error' : 'note'}: `, d.message)
+    }))
+  }
+
+  destroy(): void { this.editor.destroy() }
+}

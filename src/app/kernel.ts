@@ -1,0 +1,64 @@
+// The page's handle on the kernel: two workers, one that reads the notebook as the user types
+// (diagnostics) and one that runs checks, so that a long check never delays the underlines.
+// Stopping uses a shared flag when the page is cross-origin isolated; otherwise the run worker is
+// ended and a fresh one started (the row then has no result at all, and the page says so).
+import * as Comlink from 'comlink'
+import type { NotebookModel, RowPlan } from '../../kernels/api'
+import type { CheckRow, Progress } from '../../kernels/result'
+import type { KernelApi } from './worker'
+
+/** Raised by `run` when the user stopped a check that could not be stopped gently. */
+export class StoppedError extends Error {
+  constructor() { super('stopped before the kernel could report') }
+}
+
+function spawn(): { worker: Worker; api: Comlink.Remote<KernelApi> } {
+  const worker = new Worker(new URL('./worker.ts', import.meta.url), { type: 'module', name: 'twofold-kernel' })
+  return { worker, api: Comlink.wrap<KernelApi>(worker) }
+}
+
+/** Both kernel workers and the stop control. */
+export class Kernel {
+  private reader = spawn()
+  private runner = spawn()
+  private stopFlag: Int32Array | null =
+    typeof SharedArrayBuffer !== 'undefined' && globalThis.crossOriginIsolated ? new Int32Array(new SharedArrayBuffer(4)) : null
+  private rejectRun: ((e: Error) => void) | null = null
+
+  /** True when a stop keeps the partial counts (the row comes back inconclusive). */
+  get stopsGently(): boolean { return this.stopFlag !== null }
+
+  analyze(text: string): Promise<NotebookModel> {
+    return this.reader.api.analyze(text)
+  }
+
+  plan(text: string, check?: number): Promise<RowPlan[]> {
+    return this.reader.api.plan(text, check)
+  }
+
+  /** Runs one row; rejects with StoppedError if `stop` had to end the worker. */
+  run(text: string, plan: RowPlan, onProgress: (p: Progress) => void): Promise<CheckRow> {
+    if (this.stopFlag) Atomics.store(this.stopFlag, 0, 0)
+    return new Promise<CheckRow>((resolve, reject) => {
+      this.rejectRun = reject
+      this.runner.api
+        .run(text, plan, Comlink.proxy(onProgress), this.stopFlag ?? undefined)
+        .then(resolve, reject)
+        .finally(() => { this.rejectRun = null })
+    })
+  }
+
+  /** Stops the row that is running, if any. */
+  stop(): void {
+    if (this.stopFlag) {
+      Atomics.store(this.stopFlag, 0, 1)
+      return
+    }
+    if (this.rejectRun) {
+      this.runner.worker.terminate()
+      this.runner = spawn()
+      this.rejectRun(new StoppedError())
+      this.rejectRun = null
+    }
+  }
+}

@@ -1,0 +1,120 @@
+// The shelf: the notebooks kept in this browser, with title and last change, and what can be done
+// with them (open, rename, duplicate, delete with undo, new, import). It holds no notebook state of
+// its own; every action goes to the store or back to the workbench.
+import { button, el } from './dom'
+import { Shelf, type NotebookSummary, type StoredNotebook } from './store'
+import { titleOf, withTitle } from './title'
+
+/** What the shelf asks of the workbench. */
+export interface ShelfActions {
+  open(id: string): void
+  current(): string
+  rename(id: string, title: string): Promise<void>
+  duplicated(entry: StoredNotebook): void
+  deleted(entry: StoredNotebook): Promise<void>
+  created(): void
+  imported(file: File): Promise<boolean>
+  restoreGuide(): void
+  notice(message: string, action?: { label: string; run: () => void }): void
+}
+
+function when(ms: number): string {
+  const d = new Date(ms)
+  const today = new Date().toDateString() === d.toDateString()
+  return today ? d.toLocaleTimeString([], { hour: '2-digit', minute: '2-digit' }) : d.toLocaleDateString()
+}
+
+/** The list panel. */
+export class ShelfPanel {
+  readonly root: HTMLElement
+  private list = el('ul', { class: 'shelf-list' })
+  private fileInput = el('input', { type: 'file', accept: '.md,.markdown,text/markdown,text/plain', class: 'file-input', 'aria-label': 'choose a Markdown notebook to import' })
+
+  constructor(private shelf: Shelf, private actions: ShelfActions) {
+    this.fileInput.addEventListener('change', async () => {
+      const file = this.fileInput.files?.[0]
+      this.fileInput.value = ''
+      if (file) await this.actions.imported(file)
+      await this.refresh()
+    })
+    this.root = el('nav', { class: 'shelf', 'aria-label': 'notebooks kept in this browser' },
+      el('h2', {}, 'In this browser'),
+      this.list,
+      el('div', { class: 'shelf-actions' },
+        button('new notebook', () => this.actions.created()),
+        button('import .md', () => this.fileInput.click(), { 'aria-label': 'import a Markdown notebook' }),
+        button('add the guide', () => this.actions.restoreGuide(), { 'aria-label': 'add a fresh copy of the guide notebook' }),
+        this.fileInput))
+  }
+
+  /** Re-reads the list from the store. */
+  async refresh(): Promise<void> {
+    let items: NotebookSummary[]
+    try {
+      items = await this.shelf.list()
+    } catch (e) {
+      this.list.replaceChildren(el('li', { class: 'quiet' }, `The list could not be read: ${(e as Error)?.message ?? e}`))
+      return
+    }
+    this.list.replaceChildren(...items.map((n) => this.item(n)))
+  }
+
+  private item(n: NotebookSummary): HTMLElement {
+    const current = n.id === this.actions.current()
+    const open = button(n.title, () => this.actions.open(n.id), { class: 'shelf-open', 'aria-current': current ? 'true' : undefined, 'aria-label': `open ${n.title}, changed ${when(n.changed)}` })
+    const li = el('li', { class: current ? 'current' : '', 'data-id': n.id },
+      open,
+      el('span', { class: 'changed' }, when(n.changed)),
+      el('span', { class: 'shelf-item-actions' },
+        button('rename', () => this.renaming(li, n), { 'aria-label': `rename ${n.title}` }),
+        button('copy', () => void this.duplicate(n), { 'aria-label': `duplicate ${n.title}` }),
+        button('delete', () => void this.remove(n), { 'aria-label': `delete ${n.title}` })))
+    return li
+  }
+
+  private renaming(li: HTMLElement, n: NotebookSummary): void {
+    const input = el('input', { type: 'text', class: 'rename', 'aria-label': `new title for ${n.title}` })
+    input.value = n.title
+    const commit = async (ok: boolean) => {
+      input.onblur = null
+      const title = input.value.trim()
+      if (ok && title && title !== n.title) {
+        try { await this.actions.rename(n.id, title) } catch (e) { this.actions.notice(`Could not rename: ${(e as Error)?.message ?? e}`) }
+      }
+      await this.refresh()
+    }
+    input.addEventListener('keydown', (e) => {
+      if (e.key === 'Enter') { e.preventDefault(); void commit(true) }
+      if (e.key === 'Escape') { e.preventDefault(); void commit(false) }
+    })
+    input.onblur = () => void commit(true)
+    li.querySelector('.shelf-open')!.replaceWith(input)
+    input.focus()
+    input.select()
+  }
+
+  private async duplicate(n: NotebookSummary): Promise<void> {
+    try {
+      const copy = await this.shelf.duplicate(n.id, (text) => withTitle(text, `${titleOf(text) ?? n.title} (copy)`))
+      await this.refresh()
+      this.actions.duplicated(copy)
+    } catch (e) {
+      this.actions.notice(`Could not duplicate: ${(e as Error)?.message ?? e}`)
+    }
+  }
+
+  private async remove(n: NotebookSummary): Promise<void> {
+    try {
+      const entry = await this.shelf.remove(n.id)
+      await this.refresh()
+      if (!entry) return
+      await this.actions.deleted(entry)
+      this.actions.notice(`Deleted “${n.title}”.`, {
+        label: 'undo',
+        run: () => void this.shelf.restore(entry).then(() => this.refresh(), (e) => this.actions.notice(`Could not put it back: ${(e as Error)?.message ?? e}`)),
+      })
+    } catch (e) {
+      this.actions.notice(`Could not delete: ${(e as Error)?.message ?? e}`)
+    }
+  }
+}

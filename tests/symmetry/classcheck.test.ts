@@ -5,7 +5,7 @@
 import { describe, expect, it } from 'vitest'
 import { classCheck } from '../../kernels/symmetry/classcheck'
 import { decideCutoff } from '../../kernels/symmetry/cutoff'
-import { depot, notebook, position, SEEN } from './fixtures'
+import { depot, notebook, position, PUMPS, SEEN } from './fixtures'
 
 /** Asserts that the case breaks exactly one rule, once, at the `occurrence`-th `needle`. */
 function breaksOnly(rule: number, protocolBody: string, needle: string, opts: { extra?: string; property?: string; occurrence?: number } = {}) {
@@ -193,29 +193,3 @@ describe('in-class protocols that look suspicious are granted', () => {
     for (const p of c.properties) expect(decideCutoff(c.protocol, p).applies).toBe(true)
   })
 })
-
-export const PUMPS = `protocol pumps {
-  const delay = 2
-  const patience = 2
-  const cap = 4
-  timing synchronous(delay: delay, idle: 1)
-  faults crash
-  message beat
-  state suspect[peer]: bool = false
-  state wait[peer]: 1..cap = patience
-  state quiet[peer]: 0..cap = 0
-  on beat from q {
-    quiet[q] := 0
-    if suspect[q] {
-      suspect[q] := false
-      wait[q] := min(wait[q] + 1, cap)
-    }
-  }
-  step {
-    broadcast beat
-    for q {
-      quiet[q] := min(quiet[q] + 1, cap)
-      if quiet[q] >= wait[q] { suspect[q] := true }
-    }
-  }
-}`

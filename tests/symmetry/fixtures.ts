@@ -60,3 +60,30 @@ ${body}
 
 /** The default property of the depot cases (in the class by itself). */
 export const SEEN = 'property seenok = forall p, q: always (correct(q) implies not p.seen[q])'
+
+/** The orchard pumps of the language guide (language.md), in the class for its three properties. */
+export const PUMPS = `protocol pumps {
+  const delay = 2
+  const patience = 2
+  const cap = 4
+  timing synchronous(delay: delay, idle: 1)
+  faults crash
+  message beat
+  state suspect[peer]: bool = false
+  state wait[peer]: 1..cap = patience
+  state quiet[peer]: 0..cap = 0
+  on beat from q {
+    quiet[q] := 0
+    if suspect[q] {
+      suspect[q] := false
+      wait[q] := min(wait[q] + 1, cap)
+    }
+  }
+  step {
+    broadcast beat
+    for q {
+      quiet[q] := min(quiet[q] + 1, cap)
+      if quiet[q] >= wait[q] { suspect[q] := true }
+    }
+  }
+}`

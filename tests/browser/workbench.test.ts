@@ -1,0 +1,248 @@
+// End-to-end tests of the built workbench in Debian's Chromium. The verdicts shown come from the
+// kernel; the oracle for "the page shows the verdict" is the kernel itself, called directly in
+// Node on the same notebook text (runNotebook), so the page must agree with it.
+import { mkdirSync } from 'node:fs'
+import { join } from 'node:path'
+import type { Browser, BrowserContext, Page } from 'playwright-core'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { runNotebook } from '../../kernels/api'
+import { ARTIFACTS, ROOT, buildSite, launch, removeSite, serve, watchErrors } from './harness'
+
+let site: string
+let server: Awaited<ReturnType<typeof serve>>
+let browser: Browser
+
+beforeAll(async () => {
+  site = await buildSite()
+  server = await serve(site)
+  browser = await launch()
+  mkdirSync(ARTIFACTS, { recursive: true })
+})
+
+afterAll(async () => {
+  await browser?.close()
+  await server?.close()
+  if (site) removeSite(site)
+})
+
+/** A fresh browser profile (empty IndexedDB) on the workbench, once its editors are up. */
+async function open(): Promise<{ context: BrowserContext; page: Page; errors: string[] }> {
+  const context = await browser.newContext({ viewport: { width: 1400, height: 1000 } })
+  const page = await context.newPage()
+  const errors = watchErrors(page)
+  await page.goto(server.url)
+  await page.waitForSelector('.cm-editor')
+  await page.waitForSelector('.check-line')
+  return { context, page, errors }
+}
+
+async function importText(page: Page, name: string, text: string | Buffer): Promise<void> {
+  await page.setInputFiles('input.file-input', { name, mimeType: 'text/markdown', buffer: Buffer.isBuffer(text) ? text : Buffer.from(text) })
+}
+
+/** A harbour crane protocol whose detector keeps suspecting a crashed peer: `quiet` is violated. */
+const cranes = `---
+title: Harbour cranes
+---
+
+# Harbour cranes
+
+Each crane signals the others; a crane that hears nothing for two ticks suspects its peer.
+
+\`\`\`protocol
+protocol cranes {
+  timing synchronous(delay: 1, idle: 1)
+  faults crash
+  message signal
+  state suspect[peer]: bool = false
+  state quiet[peer]: 0..2 = 0
+  on signal from q { quiet[q] := 0
+    suspect[q] := false }
+  step {
+    broadcast signal
+    for q {
+      quiet[q] := min(quiet[q] + 1, 2)
+      if quiet[q] >= 2 { suspect[q] := true }
+    }
+  }
+}
+\`\`\`
+
+\`\`\`property
+property quiet = forall p, q: correct(p) and faulty(q) implies eventually always not p.suspect[q]
+\`\`\`
+
+\`\`\`check
+check cranes: quiet
+\`\`\`
+`
+
+/** Two counters per depot, any start value: 1,024 x 1,024 = 1,048,576 reachable states with 2 processes. */
+const depots = `# Depot counters
+
+\`\`\`protocol
+protocol depot {
+  timing asynchronous
+  faults none
+  message tick
+  state x: 0..31 = any
+  state y: 0..31 = any
+  step { skip }
+}
+\`\`\`
+
+\`\`\`property
+property small = forall p: always p.x <= 31
+\`\`\`
+
+\`\`\`check
+check depot: small for 2 processes
+\`\`\`
+`
+
+describe('opening the workbench', () => {
+  it('shows the guide with editors and typeset formulas and no console errors', async () => {
+    const { context, page, errors } = await open()
+    expect(await page.locator('.doc-title').textContent()).toMatch(/guide/i)
+    expect(await page.locator('.cm-editor').count()).toBeGreaterThan(2)
+    expect(await page.locator('.prose-rendered .katex').count()).toBeGreaterThan(0)
+    expect(await page.locator('.typeset .katex').count()).toBeGreaterThan(0)
+    await page.waitForTimeout(600) // let the first analysis land, so its errors would show
+    await page.screenshot({ path: join(ARTIFACTS, 'guide.png') })
+    expect(errors).toEqual([])
+    await context.close()
+  })
+})
+
+describe('running a check', () => {
+  it('shows the verdict the kernel gives for the same notebook', async () => {
+    const { context, page, errors } = await open()
+    await page.locator('.check-line').first().locator('button.run').click()
+    await page.waitForSelector('.check-line.fresh', { timeout: 60_000 })
+    const shown = await page.locator('.check-line').first().locator('.verdict .word').allTextContents()
+    // Oracle: the kernel run directly in Node on the guide.
+    const { readFileSync } = await import('node:fs')
+    const guide = readFileSync(join(ROOT, 'notebooks/guide.md'), 'utf8')
+    const report = await runNotebook(guide, 'notebooks/guide.md', {})
+    const expected = report.checks.filter((r) => r.check === 0).map((r) => (r.verdict === 'error' ? 'could not run' : r.verdict))
+    expect(shown.map((s) => s.trim().toLowerCase())).toEqual(expected)
+    expect(errors).toEqual([])
+    await context.close()
+  })
+
+  it('marks dependent findings out of date as soon as the protocol is edited', async () => {
+    const { context, page } = await open()
+    const first = page.locator('.check-line').first()
+    await first.locator('button.run').click()
+    await page.waitForSelector('.check-line.fresh', { timeout: 60_000 })
+    await page.locator('.block-protocol .cm-content').first().click()
+    await page.keyboard.press('End')
+    await page.keyboard.type(' // edited')
+    expect(await first.getAttribute('class')).toContain('stale')
+    expect(await first.locator('.stale-note').isVisible()).toBe(true)
+    // The findings stay visible (out of date, not deleted).
+    expect(await first.locator('.verdict').count()).toBeGreaterThan(0)
+    await context.close()
+  })
+})
+
+describe('keeping notebooks', () => {
+  it('restores an edit after a reload', async () => {
+    const { context, page } = await open()
+    await page.locator('.block-protocol .cm-content').first().click()
+    await page.keyboard.press('Control+End')
+    await page.keyboard.type('\n// the lamp on the north pier')
+    await page.waitForFunction(() => document.querySelector('.save-state')?.textContent?.startsWith('saved'))
+    await page.reload()
+    await page.waitForSelector('.cm-editor')
+    expect(await page.locator('.block-protocol .cm-content').first().textContent()).toContain('the lamp on the north pier')
+    await context.close()
+  })
+
+  it('refuses a malformed import, says where, and leaves the list unchanged', async () => {
+    const { context, page } = await open()
+    await page.waitForSelector('.shelf-list li')
+    const before = await page.locator('.shelf-list li').count()
+    await importText(page, 'broken.md', '# Broken quay\n\n```protocol\nprotocol quay {\n  state x: bool = \n}\n```\n')
+    const notice = page.locator('.notice', { hasText: 'Nothing was imported' })
+    await notice.waitFor()
+    expect(await notice.textContent()).toMatch(/line \d+, column \d+/)
+    expect(await page.locator('.shelf-list li').count()).toBe(before)
+    await importText(page, 'binary.md', Buffer.from([0x23, 0x20, 0xff, 0xfe, 0x00, 0x01]))
+    await page.locator('.notice', { hasText: 'not UTF-8 text' }).waitFor()
+    expect(await page.locator('.shelf-list li').count()).toBe(before)
+    await context.close()
+  })
+})
+
+describe('untrusted notebook text', () => {
+  it('renders prose with an onerror image, a script and a javascript: link without running any', async () => {
+    const { context, page, errors } = await open()
+    const evil = [
+      '# Lighthouse log',
+      '',
+      'A picture: <img src=x onerror="window.__pwned = 1">',
+      '',
+      '<script>window.__pwned = 2</script>',
+      '',
+      '[open the log](javascript:window.__pwned=3) and <a href="javascript:window.__pwned=4">this</a>.',
+      '',
+      '$\\href{javascript:window.__pwned=5}{x}$',
+      '',
+    ].join('\n')
+    await importText(page, 'evil.md', evil)
+    await page.locator('.doc-title', { hasText: 'Lighthouse log' }).waitFor()
+    for (const link of await page.locator('.prose-rendered a').all()) await link.click({ force: true }).catch(() => {})
+    await page.waitForTimeout(500)
+    expect(await page.evaluate(() => (window as unknown as { __pwned?: number }).__pwned)).toBeUndefined()
+    expect(await page.locator('.prose-rendered script').count()).toBe(0)
+    expect(await page.locator('[onerror]').count()).toBe(0)
+    expect(await page.locator('a[href^="javascript"]').count()).toBe(0)
+    expect(errors.filter((e) => !/ERR_|404|Failed to load resource/.test(e))).toEqual([])
+    await context.close()
+  })
+})
+
+describe('counterexamples', () => {
+  it('draws the lasso of a violated property beside its tick table', async () => {
+    // Oracle: the kernel in Node says `quiet` is violated with a lasso.
+    const report = await runNotebook(cranes, 'cranes.md', {})
+    expect(report.checks[0].verdict).toBe('violated')
+    const { context, page } = await open()
+    await importText(page, 'cranes.md', cranes)
+    await page.locator('.doc-title', { hasText: 'Harbour cranes' }).waitFor()
+    await page.locator('.check-line').first().locator('button.run').click()
+    await page.waitForSelector('.witness svg', { timeout: 60_000 })
+    expect(await page.locator('.verdict .word').first().textContent()).toBe('violated')
+    expect(await page.locator('.witness svg .lane').count()).toBe(report.checks[0].processes)
+    expect(await page.locator('.witness table.ticks tr[data-tick]').count()).toBe(report.checks[0].counterexample!.ticks.length)
+    await page.locator('.witness svg .tick-band').first().hover({ force: true })
+    expect(await page.locator('.witness tr.lit').count()).toBe(1)
+    await page.locator('.witness').first().screenshot({ path: join(ARTIFACTS, 'counterexample.png') })
+    await context.close()
+  })
+})
+
+describe('long checks', () => {
+  it('keep every main-thread task under 200 ms during a check of over a million states', async () => {
+    // Oracle for the size: the kernel in Node counts the states of the same notebook.
+    const report = await runNotebook(depots, 'depots.md', {})
+    expect(report.checks[0].states).toBeGreaterThanOrEqual(1_000_000)
+    const { context, page } = await open()
+    await importText(page, 'depots.md', depots)
+    await page.locator('.doc-title', { hasText: 'Depot counters' }).waitFor()
+    await page.waitForSelector('.check-line button.run:not([disabled])')
+    await page.evaluate(() => {
+      const w = window as unknown as { __long: number[] }
+      w.__long = []
+      new PerformanceObserver((list) => { for (const e of list.getEntries()) w.__long.push(e.duration) }).observe({ type: 'longtask', buffered: false })
+    })
+    await page.locator('.check-line button.run').first().click()
+    await page.waitForSelector('.check-line.fresh', { timeout: 90_000 })
+    const states = await page.locator('.verdict .counts').first().textContent()
+    expect(states).toContain(report.checks[0].states.toLocaleString('en-US'))
+    const long = await page.evaluate(() => (window as unknown as { __long: number[] }).__long)
+    expect(long.filter((d) => d > 200)).toEqual([])
+    await context.close()
+  })
+})

@@ -86,7 +86,8 @@ function shown(v: ShownValue): string {
 /** A counterexample, one line per tick: `t3  crash #2 | step #1 | #1<-#2 beat | #1->#2 beat | #1 quiet[2] 0->1`. */
 export function renderCounterexample(cx: Counterexample, assignment: Record<string, number>): string[] {
   const bound = Object.entries(assignment).map(([v, n]) => `${v}=#${n}`).join(', ')
-  const shape = cx.kind === 'lasso' ? `lasso, ${cx.ticks.length} ticks, loop from tick index ${cx.loopStart}` : `${cx.kind}, ${cx.ticks.length} ticks`
+  const ticks = `${cx.ticks.length} tick${cx.ticks.length === 1 ? '' : 's'}`
+  const shape = cx.kind === 'lasso' ? `lasso, ${ticks}, loop from tick index ${cx.loopStart}` : `${cx.kind}, ${ticks}`
   const lines = [`  counterexample (${shape}${bound ? `; ${bound}` : ''}): ${cx.message}`]
   if (cx.initial.length) {
     const start = cx.initial.map((p) => `#${p.process} ` + Object.entries(p.values).map(([k, v]) => `${k}=${shown(v)}`).join(' '))

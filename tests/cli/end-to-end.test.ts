@@ -45,7 +45,7 @@ const notebook = (title: string, ...checks: string[]) =>
 const fixtures = {
   'holds.md': notebook('Steady lamps', 'check lamps: steady'),
   'violated.md': notebook('Dark lamps', 'check lamps: steady, dark'),
-  'broken.md': notebook('Broken lamps', 'check lamps: steady').replace('property dark = forall p: always not p.lit', 'property dark = forall p: always not p.lamp'),
+  'broken.md': notebook('Broken lamps', 'check lamps: steady, dark').replace('property dark = forall p: always not p.lit', 'property dark = forall p: always not p.lamp'),
   'limited.md': notebook('Limited lamps', 'check lamps: steady limit 2 states'),
   'sweep.md': notebook('Swept lamps', 'check lamps: steady, dark with cap in 1..4'),
 }

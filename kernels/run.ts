@@ -7,6 +7,7 @@ import { analyzeNotebook } from './language/analyze'
 import type { CheckModel, Formula, NotebookModel, PropertyModel, ProtocolModel, Term } from './language/model'
 import { explore, type ExploreResult } from './explore/reach'
 import { fromModel } from './logic/ltl'
+import { Int32Buffer } from './logic/buffer'
 import { checkLtl, type System } from './logic/product'
 import { ModelSetupError } from './model/errors'
 import { compileInstance, type Instance } from './model/instance'
@@ -68,8 +69,8 @@ function temporal(f: Formula): boolean {
   }
 }
 
-/** The atoms of a formula, each once, in order of first appearance. */
-function atomsOf(f: Formula, out: Term[] = []): Term[] {
+/** The atoms of a formula, each once, in order of first appearance (exported for the benchmark). */
+export function atomsOf(f: Formula, out: Term[] = []): Term[] {
   if (f.k === 'atom') { if (!out.includes(f.term)) out.push(f.term) }
   else if ('arg' in f) atomsOf(f.arg, out)
   else if ('left' in f) { atomsOf(f.left, out); atomsOf(f.right, out) }
@@ -134,56 +135,99 @@ function invariantBody(f: Formula): Formula | null {
   return f.k === 'always' && !temporal(f.arg) ? f.arg : null
 }
 
-/** The system of an explored instance for the temporal product: states are store indices. */
-function systemOf(inst: Instance, r: ExploreResult, atoms: StateTerm[]): System {
+/**
+ * The state graph of a completely explored instance with the fairness marks of every edge, in
+ * compressed rows: the successors of s are target[start[s] .. start[s+1]), each with its marks.
+ * Built once per row and shared by every assignment of the property's variables, so the product
+ * never recomputes a tick.
+ */
+export interface FairGraph {
+  start: Int32Array
+  target: Int32Array
+  marks: Int32Array
+  initial: number[]
+  fairnessSets: number
+}
+
+/**
+ * Fairness sets (semantics.md) as transition marks: bit i, process i steps or is crashed; then one
+ * bit per channel j->i: i is crashed, or the channel is empty at the source, or i receives from it
+ * in the tick; last, under stabilizing, the edge ends in a stable state. An edge that reaches the
+ * same target with other marks (a different set of processes stepping) is a separate edge.
+ */
+export function fairGraph(inst: Instance, r: ExploreResult, shouldStop?: () => boolean): FairGraph | null {
   const n = inst.n
   const W = inst.words
   const store = r.store
-  const data = () => store.data
   const crashed = Array.from({ length: n }, (_, i) => isCrashed(inst, i))
-  const empty: { j: number; i: number; bit: number; test: (w: Uint32Array, o: number) => boolean }[] = []
-  for (let j = 0; j < n; j++) for (let i = 0; i < n; i++) if (i !== j) empty.push({ j, i, bit: 0, test: channelEmpty(inst, j, i) })
-  // Fairness sets (semantics.md): bit i, process i steps or is crashed; then one bit per channel
-  // j->i: i is crashed, or the channel is empty, or i receives from it; last, under stabilizing,
-  // the edge ends in a stable state.
-  empty.forEach((c, k) => { c.bit = n + k })
+  const channels: { i: number; bit: number; index: number; test: (w: Uint32Array, o: number) => boolean }[] = []
+  for (let j = 0; j < n; j++) {
+    for (let i = 0; i < n; i++) {
+      // Channel index of j->i as the instance numbers it (see Instance.channelCount).
+      if (i !== j) channels.push({ i, bit: n + channels.length, index: j * (n - 1) + (i < j ? i : i - 1), test: channelEmpty(inst, j, i) })
+    }
+  }
   const stab = inst.protocol.timing.kind === 'stabilizing' ? isStable(inst) : null
-  const fairnessSets = n + empty.length + (stab ? 1 : 0)
+  const fairnessSets = n + channels.length + (stab ? 1 : 0)
   const initial: number[] = []
   const init = inst.initialStates()
   for (let off = 0; off < init.length; off += W) {
     const k = store.lookup(init, off)
     if (k >= 0 && !initial.includes(k)) initial.push(k)
   }
+  const states = store.size
+  const start = new Int32Array(states + 1)
+  const target = new Int32Buffer(Math.max(1024, r.transitions + 16))
+  const marks = new Int32Buffer(Math.max(1024, r.transitions + 16))
   const src = new Uint32Array(W)
-  // Channel index of j->i as the instance numbers it (see Instance.channelCount).
-  const chan = (j: number, i: number) => j * (n - 1) + (i < j ? i : i - 1)
+  let base = 0
+  let rowStart = 0
+  const emit = (dst: Uint32Array, stepped: number, receivedFrom: number): boolean => {
+    const t = store.lookup(dst, 0)
+    if (t < 0) return false
+    let m = base | stepped
+    for (const c of channels) if ((receivedFrom >> c.index) & 1) m |= 1 << c.bit
+    for (let i = 0; i < n; i++) if (!((m >> i) & 1) && crashed[i](dst, 0)) m |= 1 << i
+    if (stab && stab(dst, 0)) m |= 1 << (fairnessSets - 1)
+    const td = target.data, md = marks.data
+    for (let k = rowStart; k < target.length; k++) if (td[k] === t && md[k] === m) return false
+    target.push(t)
+    marks.push(m)
+    return false
+  }
+  for (let s = 0; s < states; s++) {
+    if ((s & 1023) === 0 && shouldStop?.()) return null
+    start[s] = rowStart = target.length
+    store.get(s, src, 0)
+    base = 0
+    for (let i = 0; i < n; i++) if (crashed[i](src, 0)) base |= 1 << i
+    for (const c of channels) if ((base >> c.i) & 1 || c.test(src, 0)) base |= 1 << c.bit
+    inst.successors(src, 0, emit)
+  }
+  start[states] = target.length
+  return { start, target: target.data.subarray(0, target.length), marks: marks.data.subarray(0, marks.length), initial, fairnessSets }
+}
+
+/** The system the temporal product reads: a fair graph and the atoms of one assignment. */
+export function systemOf(inst: Instance, r: ExploreResult, g: FairGraph, atoms: StateTerm[]): System {
+  const W = inst.words
+  const data = r.store.data
+  const masks = new Int32Array(r.store.size)
+  for (let s = 0; s < masks.length; s++) {
+    let m = 0
+    for (let k = 0; k < atoms.length; k++) if (atoms[k](data, s * W)) m |= 1 << k
+    masks[s] = m
+  }
+  const { start, target, marks } = g
   return {
-    fairnessSets,
-    initial: () => initial,
-    atoms(s) {
-      let m = 0
-      const d = data()
-      for (let k = 0; k < atoms.length; k++) if (atoms[k](d, s * W)) m |= 1 << k
-      return m
-    },
+    fairnessSets: g.fairnessSets,
+    initial: () => g.initial,
+    atoms: (s) => masks[s],
     successors(s, to, fair) {
-      const d = data()
-      let base = 0
-      for (let i = 0; i < n; i++) if (crashed[i](d, s * W)) base |= 1 << i
-      for (const c of empty) if ((base >> c.i) & 1 || c.test(d, s * W)) base |= 1 << c.bit
-      store.get(s, src, 0)
-      inst.successors(src, 0, (dst, stepped, receivedFrom) => {
-        const t = store.lookup(dst, 0)
-        if (t < 0) return false // beyond an incomplete exploration; never used for verdicts
-        let m = base | stepped
-        for (const c of empty) if ((receivedFrom >> chan(c.j, c.i)) & 1) m |= 1 << c.bit
-        for (let i = 0; i < n; i++) if (crashed[i](dst, 0)) m |= 1 << i
-        if (stab && stab(dst, 0)) m |= 1 << (fairnessSets - 1)
-        to.push(t)
-        fair.push(m)
-        return false
-      })
+      for (let k = start[s], e = start[s + 1]; k < e; k++) {
+        to.push(target[k])
+        fair.push(marks[k])
+      }
     },
   }
 }
@@ -297,9 +341,14 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   }
   // Temporal property: the product with the automaton of the negation, per assignment.
   let productNodes = 0
+  const graph = fairGraph(inst, r, opts.shouldStop)
+  if (!graph) {
+    row.note = 'the check was stopped before it finished'
+    return row
+  }
   for (const a of chosen) {
     const compiled = terms.map((t) => compileTerm(inst, t, a))
-    const sys = systemOf(inst, r, compiled)
+    const sys = systemOf(inst, r, graph, compiled)
     const ltl = fromModel(prop.formula, (t) => terms.indexOf(t))
     let stoppedByLimit = false
     const v = checkLtl(sys, ltl, {

@@ -1,0 +1,87 @@
+// Parse-and-check throughput: a generated notebook of about 5,000 lines through the whole front
+// end, against a baseline of the CommonMark parse of the same text alone.
+import MarkdownIt from 'markdown-it'
+import { analyzeNotebook } from '../kernels/language/analyze'
+
+/** A notebook of `blocks` protocol/property/check groups, about 60 lines each. */
+export function generatedNotebook(targetLines = 5000): string {
+  const parts: string[] = ['---', 'title: Generated orchard', '---', '# Generated orchard', '']
+  for (let k = 0; parts.length < targetLines; k++) {
+    parts.push(
+      `Pump station ${k} watches its neighbours with heartbeats, with a sum $x_{${k}} + 1$.`, '',
+      '```protocol',
+      `protocol station${k} {`,
+      '  const delay = 2',
+      '  const patience = 2',
+      '  const cap = 4',
+      '  timing synchronous(delay: delay, idle: 1)',
+      '  faults crash',
+      '  message beat',
+      '  message level(v: 0..cap, ok: bool)',
+      '  state suspect[peer]: bool = false',
+      '  state wait[peer]: 1..cap = patience',
+      '  state quiet[peer]: 0..cap = 0',
+      '  state mode: {idle, pumping, drained} = idle',
+      '  state seen: 0..cap = any',
+      '  on beat from q {',
+      '    quiet[q] := 0',
+      '    if suspect[q] {',
+      '      suspect[q] := false',
+      '      wait[q] := min(wait[q] + 1, cap)',
+      '    } else if quiet[q] > 0 {',
+      '      skip',
+      '    } else {',
+      '      wait[q] := max(1, wait[q] - 0)',
+      '    }',
+      '  }',
+      '  on level(v, ok) from q {',
+      '    seen := if ok then v else seen',
+      '    send beat to q',
+      '  }',
+      '  step {',
+      '    broadcast beat',
+      '    broadcast level(seen, mode = pumping)',
+      '    mode := one of {idle, pumping, drained}',
+      '    for q {',
+      '      quiet[q] := min(quiet[q] + 1, cap)',
+      '      if quiet[q] >= wait[q] and not (seen * 2 / 2 % 5 < 0) { suspect[q] := true }',
+      '    }',
+      '  }',
+      '}',
+      '```', '',
+      '```property',
+      `property detects${k} = forall p, q: correct(p) and faulty(q) implies eventually always p.suspect[q]`,
+      `property settles${k} = forall p, q: correct(p) and correct(q) implies eventually always not p.suspect[q]`,
+      `property bounded${k} = forall p, q: always (p.wait[q] <= cap and p.quiet[q] >= 0)`,
+      '```', '',
+      '```check',
+      `check station${k}: detects${k}, settles${k}`,
+      `check station${k}: bounded${k} for 2..3 processes with delay in 1..2 limit 100000 states`,
+      '```', '',
+    )
+  }
+  return parts.join('\n')
+}
+
+export interface ParseCase { name: string; lines: number; seconds: number; linesPerSecond: number; diagnostics: number }
+
+function timeIt(runs: number, f: () => unknown): number {
+  f() // warm-up
+  const t0 = performance.now()
+  for (let i = 0; i < runs; i++) f()
+  return (performance.now() - t0) / 1000 / runs
+}
+
+/** Lines per second of analyzeNotebook on the generated notebook, and of markdown-it alone. */
+export function parseCases(): { cases: ParseCase[]; baseline: ParseCase } {
+  const text = generatedNotebook()
+  const lines = text.split('\n').length
+  const diagnostics = analyzeNotebook(text).diagnostics.length
+  const seconds = timeIt(5, () => analyzeNotebook(text))
+  const md = new MarkdownIt('commonmark')
+  const base = timeIt(5, () => md.parse(text, {}))
+  return {
+    cases: [{ name: 'parse and check a generated notebook', lines, seconds, linesPerSecond: lines / seconds, diagnostics }],
+    baseline: { name: 'CommonMark parse of the same text (markdown-it)', lines, seconds: base, linesPerSecond: lines / base, diagnostics: 0 },
+  }
+}

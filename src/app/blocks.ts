@@ -85,7 +85,9 @@ export class ProseView {
   render(): void {
     const src = this.content()
     if (this.front) {
-      this.shown.replaceChildren(el('pre', { class: 'front-text' }, src.trim()))
+      // The front matter reads as a quiet line of metadata; its `---` fences are syntax, not content.
+      const lines = src.split('\n').filter((l) => l.trim() && !/^---\s*$/.test(l))
+      this.shown.replaceChildren(el('div', { class: 'front-text' }, lines.join(' · ') || 'front matter'))
       return
     }
     this.shown.replaceChildren(toFragment(renderProse(src)))

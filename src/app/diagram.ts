@@ -51,7 +51,7 @@ export interface DiagramOptions {
 const ROW = 30
 const LANE = 110
 const TOP = 46
-const LEFT = 70
+const LEFT = 96
 const ATOM_COL = 22
 const PALETTE = ['#6c8f3a', '#b07a2a', '#5a6fa0', '#8a5a8c', '#3f8a86', '#a0525a']
 

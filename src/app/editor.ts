@@ -63,7 +63,8 @@ const theme = EditorView.theme({
   '&': { fontSize: '14px', backgroundColor: 'transparent' },
   '.cm-content': { fontFamily: '"IBM Plex Mono", "DejaVu Sans Mono", Menlo, monospace', padding: '6px 0' },
   '.cm-gutters': { backgroundColor: 'transparent', border: 'none', color: '#a9a496' },
-  '.cm-activeLine': { backgroundColor: '#f4efe0' },
+  '.cm-activeLine': { backgroundColor: 'transparent' },
+  '&.cm-focused .cm-activeLine': { backgroundColor: '#f4efe0' },
   '&.cm-focused': { outline: 'none' },
   '.cm-lineNumbers .cm-gutterElement': { minWidth: '3ch', paddingRight: '10px', fontSize: '12px' },
 })

@@ -52,7 +52,7 @@ caption{text-align:left;color:#6f6a5e;font-size:.85rem;padding-bottom:.2rem}
 .v-holds .word{color:#2f5d50}.v-violated .word{color:#a33b20}.v-inconclusive .word{color:#8a5a1e}.v-error .word{color:#6f6a5e}
 .counts,.quiet{color:#6f6a5e;font-size:.8rem}
 .alarm{color:#a33b20;font-weight:bold}
-.certificate{margin:.6rem 0}
+.certificate{margin:.6rem 0}.statement{overflow-x:auto}summary{color:#6f6a5e;font-size:.85rem}
 .cert-title{font-weight:bold}
 .witness-body{display:flex;flex-wrap:wrap;gap:1rem;align-items:flex-start}
 .ticks td div{margin:.1rem 0}

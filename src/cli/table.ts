@@ -42,8 +42,9 @@ export function renderReport(report: Report): string {
     instanceLabel(row),
     constantsLabel(row.constants),
     row.verdict + (row.agreement === false ? ' (sizes disagree!)' : ''),
-    count(row.states, row.complete),
-    count(row.transitions, row.complete),
+    // A row with no instance (the cutoff was refused and no sizes were given) explored nothing.
+    row.processes < 1 ? '-' : count(row.states, row.complete),
+    row.processes < 1 ? '-' : count(row.transitions, row.complete),
     `${row.seconds.toFixed(2)} s`,
   ])
   const widths = HEADER.map((h, c) => Math.max(h.length, ...cells.map((r) => r[c].length)))
@@ -55,10 +56,10 @@ export function renderReport(report: Report): string {
 
   const details: string[] = []
   for (const row of report.checks) {
-    const title = `${row.protocol}/${row.property} on ${instanceLabel(row)}${Object.keys(row.constants).length ? ` with ${constantsLabel(row.constants)}` : ''}`
+    const title = `${row.protocol}/${row.property} ${row.processes < 1 ? '(no instance checked)' : `on ${instanceLabel(row)}`}${Object.keys(row.constants).length ? ` with ${constantsLabel(row.constants)}` : ''}`
     const lines: string[] = []
     if (row.note) lines.push(`  ${row.note}`)
-    if (!row.complete && row.verdict !== 'violated') lines.push('  stopped before exploring every state (counts are a lower bound)')
+    if (!row.complete && row.verdict !== 'violated' && row.processes >= 1) lines.push('  stopped before exploring every state (counts are a lower bound)')
     if (row.agreement === false) lines.push('  soundness alarm: the explicit sizes and the cutoff instance disagree')
     if (!row.cutoff.applies && row.cutoff.reasons.length) {
       lines.push('  cutoff refused:')

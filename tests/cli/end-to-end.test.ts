@@ -47,6 +47,7 @@ const fixtures = {
   'violated.md': notebook('Dark lamps', 'check lamps: steady, dark'),
   'broken.md': notebook('Broken lamps', 'check lamps: steady, dark').replace('property dark = forall p: always not p.lit', 'property dark = forall p: always not p.lamp'),
   'limited.md': notebook('Limited lamps', 'check lamps: steady limit 2 states'),
+  'refused.md': notebook('Crowded lamps', 'check lamps: dark').replace('    lit := not lit', '    lit := some r: seen[r] > 0'),
   'sweep.md': notebook('Swept lamps', 'check lamps: steady, dark with cap in 1..4'),
 }
 
@@ -102,6 +103,16 @@ describe('twofold check exit codes', () => {
     // Oracle: the hand derivation above gives 5 reachable states, more than the limit of 2 (language.md: hitting it is inconclusive).
     expect(report.checks.map((r) => r.verdict)).toEqual(['inconclusive'])
     expect(code).toBe(3)
+  })
+
+  it('exits 3 when the cutoff is refused and no sizes are given, printing the reasons', async () => {
+    const { code, report } = await json('refused.md')
+    // Oracle: cutoff.md rule 5: `lit` is written from the aggregate `some r: ...` and the property mentions it.
+    expect(report.checks.map((r) => [r.verdict, r.cutoff.applies])).toEqual([['inconclusive', false]])
+    expect(report.checks[0].cutoff.reasons.map((r) => r.rule)).toContain(5)
+    expect(code).toBe(3)
+    const ran = await twofold(['check', 'refused.md'], ws.dir)
+    expect(ran.stdout).toMatch(/cutoff refused:\n {4}refused\.md:\d+:\d+: rule \d: /)
   })
 })
 

@@ -194,6 +194,13 @@ describe('twofold replay', () => {
     expect(ran).toEqual({ code: 2, stdout: '', stderr: 'twofold: cannot read record nowhere.json: no such file\n' })
   })
 
+  it('finds the notebook beside the record when it is not under the working directory', async () => {
+    await record()
+    const parent = join(ws.dir, '..')
+    const ran = await twofold(['replay', join(ws.dir, 'r.json')], parent, { kernel })
+    expect(ran.code).toBe(0)
+  })
+
   it('replays against the notebook given on the command line', async () => {
     await record()
     ws.write('copy.md', harbourText)

@@ -2,6 +2,7 @@
 // round-trip and replay, shards that merge into the unsharded record, and two real spawns of
 // bin/twofold.js. Fixtures are short notebooks written to a temporary directory.
 import { spawnSync } from 'node:child_process'
+import { createHash } from 'node:crypto'
 import { readFileSync, readdirSync } from 'node:fs'
 import { join } from 'node:path'
 import { fileURLToPath } from 'node:url'
@@ -141,6 +142,32 @@ describe('twofold --shard and merge', () => {
     expect(compareRecords(whole, parseRecord(merged.stdout))).toEqual([])
     ws.write('merged.json', merged.stdout)
     expect((await twofold(['replay', 'merged.json'], ws.dir)).code).toBe(0)
+  })
+})
+
+describe('twofold check --record', () => {
+  /** Oracle: the formal blocks found by scanning the fixture's fences line by line, hashed with node:crypto. */
+  function fencedBlocks(text: string) {
+    const lines = text.split('\n')
+    const blocks: { kind: string; line: number; sha256: string }[] = []
+    for (let i = 0; i < lines.length; i++) {
+      const kind = /^```(protocol|property|check)$/.exec(lines[i])?.[1]
+      if (!kind) continue
+      const end = lines.indexOf('```', i + 1)
+      const body = lines.slice(i + 1, end).join('\n')
+      blocks.push({ kind, line: i + 2, sha256: createHash('sha256').update(body).digest('hex') })
+      i = end
+    }
+    return blocks
+  }
+
+  it('hashes the notebook and each formal block, with its kind, name and line', async () => {
+    await twofold(['check', 'violated.md', '--record', 'provenance.json'], ws.dir)
+    const record = parseRecord(readFileSync(join(ws.dir, 'provenance.json'), 'utf8'))
+    expect(record.notebook.sha256).toBe(createHash('sha256').update(fixtures['violated.md']).digest('hex'))
+    expect(record.blocks.map(({ kind, line, sha256 }) => ({ kind, line, sha256 }))).toEqual(fencedBlocks(fixtures['violated.md']))
+    expect(record.blocks.map((b) => b.name)).toEqual(['lamps', 'steady, dark', 'lamps'])
+    expect(record.options).toEqual({ only: null, shard: null, limits: [null] })
   })
 })
 

@@ -207,7 +207,7 @@ function tableau(f: Ltl): Raw {
 // ---- Reductions -----------------------------------------------------------------------------
 
 function reduce(raw: Raw): Automaton {
-  const keep = usefulStates(raw)
+  const { keep, transient } = usefulStates(raw)
   const ids = new Int32Array(raw.states).fill(-1)
   const kept: number[] = []
   for (let q = 0; q < raw.states; q++) if (keep[q]) { ids[q] = kept.length; kept.push(q) }
@@ -224,6 +224,8 @@ function reduce(raw: Raw): Automaton {
   const neg = kept.map((q) => raw.neg[q] >>> 0)
   const acc = kept.map((_, i) => sets.reduce((a, s, j) => (s[i] ? a | (1 << j) : a), 0))
   const succ = kept.map((q) => raw.succ[q].filter((r) => keep[r]).map((r) => ids[r]))
+  const initial = kept.map((q) => raw.initial[q])
+  removeLittleBrothers(initial, kept.map((q) => transient[q]), pos, neg, acc, succ)
 
   // Coarsest bisimulation respecting label and acceptance, by naive partition refinement: the
   // automata are small. Bisimilar states accept the same words from there, so merging them keeps
@@ -245,7 +247,7 @@ function reduce(raw: Raw): Automaton {
   for (let i = 0; i < n; i++) if (rep[block[i]] < 0) rep[block[i]] = i
   const queue: number[] = []
   const initialBlocks = new Set<number>()
-  for (let i = 0; i < n; i++) if (raw.initial[kept[i]]) initialBlocks.add(block[i])
+  for (let i = 0; i < n; i++) if (initial[i]) initialBlocks.add(block[i])
   for (const b of [...initialBlocks].sort((a, b) => a - b)) { order[b] = queue.length; queue.push(b) }
   for (let h = 0; h < queue.length; h++) {
     const i = rep[queue[h]]
@@ -278,6 +280,41 @@ function reduce(raw: Raw): Automaton {
   }
 }
 
+/**
+ * Removes every state x that another state y can stand in for: y's label is implied by x's, y is
+ * in every acceptance set x is in (unless x is on no cycle, so visited at most once), y leads everywhere x leads (y itself standing for x), every
+ * state that leads to x also leads to y, and y is initial if x is. Replacing each visit of x by y
+ * in a run gives a run that reads the same word and is accepting if the first one was, so the
+ * language is kept. A removed state keeps no edges and is not initial; the bisimulation quotient
+ * then drops it as unreachable.
+ */
+function removeLittleBrothers(initial: boolean[], transient: boolean[], pos: number[], neg: number[], acc: number[], succ: number[][]): void {
+  const n = initial.length
+  const alive = new Array<boolean>(n).fill(true)
+  const covers = (y: number, x: number) => {
+    if ((pos[y] & ~pos[x]) !== 0 || (neg[y] & ~neg[x]) !== 0) return false
+    if (!transient[x] && (acc[x] & ~acc[y]) !== 0) return false
+    if (initial[x] && !initial[y]) return false
+    for (const v of succ[x]) if (!succ[y].includes(v === x ? y : v)) return false
+    for (let u = 0; u < n; u++) if (alive[u] && u !== x && succ[u].includes(x) && !succ[u].includes(y)) return false
+    return true
+  }
+  for (let changed = true; changed;) {
+    changed = false
+    for (let x = 0; x < n; x++) {
+      if (!alive[x]) continue
+      let y = 0
+      while (y < n && (y === x || !alive[y] || !covers(y, x))) y++
+      if (y === n) continue
+      alive[x] = false
+      initial[x] = false
+      succ[x] = []
+      for (let u = 0; u < n; u++) succ[u] = succ[u].filter((v) => v !== x)
+      changed = true
+    }
+  }
+}
+
 /** Gives equal signatures equal block numbers 0..k-1 (in order of first appearance); returns k. */
 function renumber(into: Int32Array, sig: string[]): number {
   const seen = new Map<string, number>()
@@ -290,7 +327,7 @@ function renumber(into: Int32Array, sig: string[]): number {
 }
 
 /** The states that lie on some accepting run: reachable from an initial state and reaching an accepting cycle. */
-function usefulStates(raw: Raw): boolean[] {
+function usefulStates(raw: Raw): { keep: boolean[]; transient: boolean[] } {
   const m = raw.states
   const edges: [number, number][] = []
   raw.succ.forEach((rs, q) => rs.forEach((r) => edges.push([q, r])))
@@ -312,7 +349,9 @@ function usefulStates(raw: Raw): boolean[] {
     if (forward[q] && inner[c] && meets.every((x) => x[c])) { backward[q] = true; stack.push(q) }
   }
   while (stack.length) for (const p of pred[stack.pop()!]) if (!backward[p] && forward[p]) { backward[p] = true; stack.push(p) }
-  return backward
+  // A state outside every cycle is visited at most once by a run: its acceptance membership never matters.
+  const transient = raw.succ.map((_, q) => !inner[component[q]])
+  return { keep: backward, transient }
 }
 
 /** A readable listing of an automaton, one state per line (for diagnostics and test failures). */

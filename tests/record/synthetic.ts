@@ -46,7 +46,7 @@ export const harbourModel = {
     { name: 'idle', block: propertyBlock },
     { name: 'calm', block: propertyBlock },
   ],
-  checks: [{ protocol: 0, block: checkBlock, limit: null }],
+  checks: [{ protocol: 0, block: checkBlock, limit: null, properties: [{ name: 'idle' }, { name: 'calm' }] }],
   diagnostics: [],
 } as unknown as NotebookModel
 

@@ -1,8 +1,9 @@
 // Translation of an LTL formula to a generalized Büchi automaton by the on-the-fly tableau of
 // R. Gerth, D. Peled, M. Y. Vardi and P. Wolper, "Simple on-the-fly automatic verification of
 // linear temporal logic", PSTV 1995, followed by reductions that keep the language: removal of
-// states that lie on no accepting run, removal of redundant acceptance sets, and the quotient by
-// the coarsest bisimulation that respects labels and acceptance.
+// states that lie on no accepting run, removal of redundant acceptance sets, removal of states
+// that another state can stand in for, and the quotient by the coarsest bisimulation that
+// respects labels and acceptance.
 //
 // Conventions of the result:
 // - Labels are on states. A state's label is a conjunction of atom literals, two masks: the atoms

@@ -1,12 +1,12 @@
 // The browser test harness: build the workbench with Vite's JS API into a temporary folder, serve
 // it from a tiny HTTP server on 127.0.0.1 (a random port), and drive Debian's Chromium through
 // playwright-core. No browser is downloaded: /usr/bin/chromium must exist.
-import { mkdtempSync, readFileSync, rmSync, statSync } from 'node:fs'
+import { mkdirSync, mkdtempSync, readFileSync, rmSync, statSync } from 'node:fs'
 import { createServer, type Server } from 'node:http'
 import { tmpdir } from 'node:os'
 import { extname, join, normalize } from 'node:path'
 import { fileURLToPath } from 'node:url'
-import { chromium, type Browser, type Page } from 'playwright-core'
+import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core'
 import { build } from 'vite'
 
 /** The repository root (the Vite root). */
@@ -78,4 +78,40 @@ export function watchErrors(page: Page): string[] {
 /** Removes a built site. */
 export function removeSite(dir: string): void {
   rmSync(dir, { recursive: true, force: true })
+}
+
+/** A built, served workbench and a browser pointed at it. */
+export interface Workbench {
+  url: string
+  browser: Browser
+  close(): Promise<void>
+}
+
+/** Builds, serves and launches: call in `beforeAll`, and `close` in `afterAll`. */
+export async function startWorkbench(): Promise<Workbench> {
+  const site = await buildSite()
+  const server = await serve(site)
+  const browser = await launch()
+  mkdirSync(ARTIFACTS, { recursive: true })
+  return {
+    url: server.url,
+    browser,
+    close: async () => { await browser.close(); await server.close(); removeSite(site) },
+  }
+}
+
+/** A fresh browser profile (empty IndexedDB) on the workbench, once its editors and checks are up. */
+export async function openPage(w: Workbench): Promise<{ context: BrowserContext; page: Page; errors: string[] }> {
+  const context = await w.browser.newContext({ viewport: { width: 1400, height: 1000 }, acceptDownloads: true })
+  const page = await context.newPage()
+  const errors = watchErrors(page)
+  await page.goto(w.url)
+  await page.waitForSelector('.cm-editor')
+  await page.waitForSelector('.check-line')
+  return { context, page, errors }
+}
+
+/** Imports a notebook through the page's file input, as a user choosing a file would. */
+export async function importText(page: Page, name: string, text: string | Buffer): Promise<void> {
+  await page.setInputFiles('input.file-input', { name, mimeType: 'text/markdown', buffer: Buffer.isBuffer(text) ? text : Buffer.from(text) })
 }

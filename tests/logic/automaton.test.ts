@@ -60,6 +60,15 @@ describe('automaton language', () => {
     }
   })
 
+  it('handles the highest atom, 31, whose bit is the sign bit of a 32-bit mask', () => {
+    // Oracle: the direct evaluator.
+    const hi = atom(31), lo = atom(0)
+    const w = { prefix: [1 << 31], loop: [1, (1 << 31) | 1] }
+    for (const f of [hi, always(hi), eventually(always(lo)), always(eventually(hi)), until(hi, lo), not(hi)]) {
+      expect(accepts(ltlToAutomaton(f), w), show(f)).toBe(holdsOn(f, w))
+    }
+  })
+
   it('checks the first letter against an initial state', () => {
     // p holds at position 0 only: `p` is satisfied, `next p` is not (evaluator agrees, asserted too).
     const w = { prefix: [1], loop: [0] }

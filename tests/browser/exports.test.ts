@@ -1,0 +1,64 @@
+// Exports and the shelf in the built workbench. The record is compared with the kernel run
+// directly in Node on the same notebook (the oracle); the report is read as text.
+import { readFileSync } from 'node:fs'
+import { join } from 'node:path'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { runNotebook } from '../../kernels/api'
+import { ROOT, openPage, startWorkbench, type Workbench } from './harness'
+
+let bench: Workbench
+beforeAll(async () => { bench = await startWorkbench() })
+afterAll(async () => { await bench?.close() })
+const open = () => openPage(bench)
+
+describe('exports', () => {
+  it('exports a verification record with every row the kernel plans for the notebook', async () => {
+    const { context, page } = await open()
+    const download = page.waitForEvent('download', { timeout: 90_000 })
+    await page.getByRole('button', { name: 'export the verification record as JSON' }).click()
+    const record = JSON.parse(readFileSync((await (await download).path())!, 'utf8'))
+    // Oracle: the kernel run directly in Node on the same guide text.
+    const guide = readFileSync(join(ROOT, 'notebooks/guide.md'), 'utf8')
+    const report = await runNotebook(guide, 'notebooks/guide.md', {})
+    expect(record.format.name).toBe('twofold-record')
+    expect(record.notebook.sha256).toBe(report.notebook.sha256)
+    expect(record.checks.map((r: { row: number; verdict: string }) => [r.row, r.verdict])).toEqual(report.checks.map((r) => [r.row, r.verdict]))
+    await context.close()
+  })
+
+  it('exports a self-contained report with findings and no scripts', async () => {
+    const { context, page } = await open()
+    await page.locator('.check-line').first().locator('button.run').click()
+    await page.waitForSelector('.check-line.fresh', { timeout: 60_000 })
+    const download = page.waitForEvent('download')
+    await page.getByRole('button', { name: 'export a self-contained HTML report' }).click()
+    const html = readFileSync((await (await download).path())!, 'utf8')
+    expect(html).not.toMatch(/<script/i)
+    // The policy attribute is entity-escaped; a browser reads &#39; as a quote.
+    expect(html).toMatch(/Content-Security-Policy" content="default-src (&#39;|')none/)
+    expect(html).toContain('class="verdict v-')
+    expect(html).toContain('<math')
+    expect(html).not.toMatch(/src="(?!data:)/)
+    await context.close()
+  })
+})
+
+describe('the shelf', () => {
+  it('renames, duplicates, and deletes with undo', async () => {
+    const { context, page } = await open()
+    const items = page.locator('.shelf-list li')
+    await items.first().waitFor()
+    await page.getByRole('button', { name: /^rename / }).first().click()
+    await page.locator('input.rename').fill('Quay lamps')
+    await page.keyboard.press('Enter')
+    await page.locator('.doc-title', { hasText: 'Quay lamps' }).waitFor()
+    await page.getByRole('button', { name: /^duplicate / }).first().click()
+    await page.locator('.shelf-open', { hasText: 'Quay lamps (copy)' }).waitFor()
+    expect(await items.count()).toBe(2)
+    await page.getByRole('button', { name: 'delete Quay lamps (copy)' }).click()
+    await page.waitForFunction(() => document.querySelectorAll('.shelf-list li').length === 1)
+    await page.locator('.notice button.undo').click()
+    await page.waitForFunction(() => document.querySelectorAll('.shelf-list li').length === 2)
+    await context.close()
+  })
+})

@@ -144,7 +144,15 @@ class ProtocolWriter {
       lines.push('  }')
     }
     lines.push('  step {')
-    lines.push(...this.block({ binders: [], fields: [], depth: 0 }, r.int(1, 3), '    '))
+    const stepScope: Scope = { binders: [], fields: [], depth: 0 }
+    lines.push(...this.block(stepScope, r.int(1, 2), '    '))
+    // Most protocols talk: end the step with a broadcast or a reply to each peer.
+    const m = r.pick(this.messages)
+    if (r.chance(0.5)) lines.push(`    broadcast ${m.name}${this.args(m, stepScope)}`)
+    else if (r.chance(0.4)) {
+      const inner: Scope = { binders: ['q'], fields: [], depth: 1 }
+      lines.push(`    for q {`, `      if ${this.boolExpr(inner, 1)} { send ${m.name}${this.args(m, inner)} to q }`, `    }`)
+    }
     lines.push('  }')
     lines.push('}')
     return lines.join('\n') + '\n'
@@ -252,8 +260,8 @@ class ProtocolWriter {
     const r = this.rnd
     if (t.k === 'range') {
       const roll = r.next()
-      if (roll < 0.12) return `${this.intExpr(scope, 1)} / ${this.intAtom(scope)}`
-      if (roll < 0.2) return `${this.intExpr(scope, 1)} % ${this.intAtom(scope)}`
+      if (roll < 0.06) return `${this.intExpr(scope, 1)} / ${this.intAtom(scope)}`
+      if (roll < 0.1) return `${this.intExpr(scope, 1)} % ${this.intAtom(scope)}`
       if (roll < 0.35) return `${this.intAtom(scope)} + 1`
       if (roll < 0.5) return `min(${this.intAtom(scope)} + 1, ${t.hi === 2 ? '2' : t.text === '0..cap' ? 'cap' : '1'})`
     }
@@ -275,13 +283,14 @@ class ProtocolWriter {
   /** Integer-valued operands: literals, `cap`, int vars, int fields. */
   private intAtom(scope: Scope): string {
     const r = this.rnd
-    const opts: string[] = [String(r.int(0, 2)), 'cap']
+    const opts: string[] = [String(r.int(0, 2))]
+    if (r.chance(0.3)) opts.push('cap')
     for (const v of this.vars) {
       if (v.type.k !== 'range') continue
-      if (!v.perPeer) opts.push(v.name, v.name)
-      else for (const b of scope.binders) opts.push(`${v.name}[${b}]`)
+      if (!v.perPeer) opts.push(v.name, v.name, v.name)
+      else for (const b of scope.binders) opts.push(`${v.name}[${b}]`, `${v.name}[${b}]`)
     }
-    for (const f of scope.fields) if (f.type.k === 'range') opts.push(f.name, f.name)
+    for (const f of scope.fields) if (f.type.k === 'range') opts.push(f.name, f.name, f.name)
     return r.pick(opts)
   }
 
@@ -304,13 +313,13 @@ class ProtocolWriter {
 
   private boolAtom(scope: Scope): string {
     const r = this.rnd
-    const opts: string[] = ['true', 'false']
+    const opts: string[] = [r.pick(['true', 'false'])]
     for (const v of this.vars) {
       if (v.type.k !== 'bool') continue
-      if (!v.perPeer) opts.push(v.name, v.name)
-      else for (const b of scope.binders) opts.push(`${v.name}[${b}]`, `${v.name}[${b}]`)
+      if (!v.perPeer) opts.push(v.name, v.name, v.name)
+      else for (const b of scope.binders) opts.push(`${v.name}[${b}]`, `${v.name}[${b}]`, `${v.name}[${b}]`)
     }
-    for (const f of scope.fields) if (f.type.k === 'bool') opts.push(f.name, f.name)
+    for (const f of scope.fields) if (f.type.k === 'bool') opts.push(f.name, f.name, f.name)
     return r.pick(opts)
   }
 

@@ -319,22 +319,8 @@ function showMessage(inst: Instance, it: Item): string {
  * Every one of the N(N-1) channels is listed, empty ones as [].
  */
 function canonical(inst: Instance, g: Global): string {
-  const { p, n } = inst
-  const procs = g.procs.map((pr, i) => {
-    const vars: Record<string, number> = {}
-    const peers: Record<string, Record<string, number>> = {}
-    p.vars.forEach((d, v) => {
-      if (!d.perPeer) vars[d.name] = pr.vals[v] as number
-      else {
-        const m: Record<string, number> = {}
-        for (let j = 0; j < n; j++) if (j !== i) m[String(j + 1)] = (pr.vals[v] as number[])[j]
-        peers[d.name] = m
-      }
-    })
-    const o: Record<string, unknown> = { alive: pr.alive, vars, peers }
-    if (inst.timing !== 'asynchronous') o.idle = pr.idle
-    return o
-  })
+  const { n } = inst
+  const procs = g.procs.map((pr, i) => procObject(inst, i, pr.alive, pr.idle, pr.vals))
   const channels: Record<string, string[]> = {}
   for (let j = 0; j < n; j++) {
     for (let i = 0; i < n; i++) {
@@ -345,6 +331,23 @@ function canonical(inst: Instance, g: Global): string {
   const o: Record<string, unknown> = { procs, channels }
   if (inst.timing === 'stabilizing') o.stable = g.stable
   return sortedJson(o)
+}
+
+/** One process of the canonical form: `{alive, idle?, vars: {name: v}, peers: {name: {"j": v}}}`. */
+function procObject(inst: Instance, i: number, alive: number, idle: number, vals: (number | number[])[]): object {
+  const vars: Record<string, number> = {}
+  const peers: Record<string, Record<string, number>> = {}
+  inst.p.vars.forEach((d, v) => {
+    if (!d.perPeer) vars[d.name] = vals[v] as number
+    else {
+      const m: Record<string, number> = {}
+      for (let j = 0; j < inst.n; j++) if (j !== i) m[String(j + 1)] = (vals[v] as number[])[j]
+      peers[d.name] = m
+    }
+  })
+  const o: Record<string, unknown> = { alive, vars, peers }
+  if (inst.timing !== 'asynchronous') o.idle = idle
+  return o
 }
 
 /** Every initial state: all alive, idle 0, channels empty, each `any` branching per process and peer. */
@@ -400,6 +403,10 @@ interface Move {
   /** Per sender j: the keys of the items it received from channel j->self. */
   taken: Set<string>[]
   sent: { to: number; kind: number; fields: number[] }[]
+  /** Cached canonical text of this process after the move. */
+  text?: string
+  /** Cached canonical text of channel j->self after this move, by the sender's move. */
+  inbox?: Map<Move | null, string>[]
 }
 
 /** Every move of an alive process i in a tick, bounded or not; model errors go to `errors`. */
@@ -449,17 +456,42 @@ function movesOf(inst: Instance, g: Global, i: number, bounded: boolean, errors:
   return moves
 }
 
-/** Every successor of a state: one per combination of crashes, `stable`, and per-process moves. */
-function successors(inst: Instance, g: Global, errors: string[]): Global[] {
+/** Thrown when a state's ticks exceed the exploration's budget of enumerated ticks. */
+class OutOfBudget extends Error {}
+
+/** Moves with the same effect (values, messages taken, messages sent) give the same successors. */
+function distinctMoves(moves: Move[]): Move[] {
+  const seen = new Map<string, Move>()
+  for (const m of moves) {
+    const taken = m.taken.map((t) => [...t].sort().join(' ')).join('|')
+    const sent = m.sent.map((x) => `${x.to}:${x.kind}(${x.fields.join(',')})`).sort().join(' ')
+    seen.set(`${m.stepped}/${JSON.stringify(m.vals)}/${taken}/${sent}`, m)
+  }
+  return [...seen.values()]
+}
+
+/**
+ * Every successor of a state, as canonical text: one per combination of crashes, `stable`, and
+ * per-process moves. The text is put together from per-process and per-channel pieces (cached per
+ * move, since there are far fewer moves than combinations); `referenceReachable` checks every new
+ * state's text against `canonical`, the serializer written from the contract.
+ */
+function successors(inst: Instance, g: Global, errors: string[], budget: { left: number }): string[] {
   const { n } = inst
   const alive: number[] = []
   for (let i = 0; i < n; i++) if (g.procs[i].alive) alive.push(i)
   const stableChoices = inst.timing === 'stabilizing' && !g.stable ? [0, 1] : [g.stable]
   const crashMasks = inst.p.faults === 'crash' ? 1 << alive.length : 1
-  const out: Global[] = []
+  const out: string[] = []
   const movesCache = new Map<string, Move[]>()
+  const downText = g.procs.map((pr, i) => sortedJson(procObject(inst, i, 0, 0, pr.vals)))
+  // Channel keys in the sorted order of the canonical JSON.
+  const chanOrder: [number, number, string][] = []
+  for (let j = 0; j < n; j++) for (let i = 0; i < n; i++) if (i !== j) chanOrder.push([j, i, JSON.stringify(`${j + 1}->${i + 1}`)])
+  chanOrder.sort((x, y) => (x[2] < y[2] ? -1 : x[2] > y[2] ? 1 : 0))
   for (const stable of stableChoices) {
     const bounded = inst.timing === 'synchronous' || (inst.timing === 'stabilizing' && stable === 1)
+    const tail = inst.timing === 'stabilizing' ? `],"stable":${stable}}` : ']}'
     for (let cm = 0; cm < crashMasks; cm++) {
       const crashed = new Set(alive.filter((_, b) => (cm >> b) & 1))
       const up = (i: number) => g.procs[i].alive === 1 && !crashed.has(i)
@@ -471,13 +503,16 @@ function successors(inst: Instance, g: Global, errors: string[]): Global[] {
           continue
         }
         const key = `${i}/${bounded}`
-        if (!movesCache.has(key)) movesCache.set(key, movesOf(inst, g, i, bounded, errors))
+        if (!movesCache.has(key)) movesCache.set(key, distinctMoves(movesOf(inst, g, i, bounded, errors)))
         options.push(movesCache.get(key)!)
       }
       const pick: (Move | null)[] = new Array(n)
       const combine = (i: number) => {
         if (i === n) {
-          out.push(assemble(inst, g, pick, up, stable))
+          if (--budget.left < 0) throw new OutOfBudget()
+          const chans = chanOrder.map(([j, r, key]) => key + ':' + (up(r) ? inboxText(inst, g, pick[r]!, j, r, pick[j]) : '[]'))
+          const procs = pick.map((m, r) => (m === null ? downText[r] : procText(inst, g, m, r)))
+          out.push('{"channels":{' + chans.join(',') + '},"procs":[' + procs.join(',') + tail)
           return
         }
         for (const m of options[i]) {
@@ -491,39 +526,36 @@ function successors(inst: Instance, g: Global, errors: string[]): Global[] {
   return out
 }
 
-/** Builds the state after a tick from each process's move (null: crashed now or before). */
-function assemble(
-  inst: Instance,
-  g: Global,
-  pick: (Move | null)[],
-  up: (i: number) => boolean,
-  stable: number,
-): Global {
-  const { n } = inst
-  const procs: Proc[] = g.procs.map((pr, i) => {
-    const m = pick[i]
-    if (m === null) return { alive: 0, idle: 0, vals: cloneVals(pr.vals) }
-    const idle = m.stepped ? 0 : Math.min(pr.idle + 1, inst.idle - 1)
-    return { alive: 1, idle: inst.timing === 'asynchronous' ? 0 : idle, vals: cloneVals(m.vals) }
-  })
-  const chans: Item[][] = []
-  for (let j = 0; j < n; j++) {
-    for (let i = 0; i < n; i++) {
-      const merged = new Map<string, Item>()
-      if (i !== j && up(i)) {
-        const taken = pick[i]!.taken[j]
-        const add = (it: Item) => {
-          const aged = inst.timing === 'asynchronous' ? it : { ...it, age: Math.min(it.age + 1, inst.delay) }
-          merged.set(itemKey(aged), aged)
-        }
-        for (const it of g.chans[j * n + i]) if (!taken.has(itemKey(it))) add(it)
-        const sender = pick[j]
-        if (sender) for (const s of sender.sent) if (s.to === i) add({ kind: s.kind, fields: s.fields, age: 0 })
-      }
-      chans.push([...merged.values()])
-    }
+/** Process i after an alive move: idle resets on a step and grows (capped) otherwise. */
+function procText(inst: Instance, g: Global, m: Move, i: number): string {
+  if (m.text === undefined) {
+    const idle = m.stepped ? 0 : Math.min(g.procs[i].idle + 1, inst.idle - 1)
+    m.text = sortedJson(procObject(inst, i, 1, inst.timing === 'asynchronous' ? 0 : idle, m.vals))
   }
-  return { procs, chans, stable }
+  return m.text
+}
+
+/**
+ * Channel j->i after the tick, for an alive receiver i: what i did not take, plus what j sent to
+ * i now (age 0), all aged by one (capped at the delay); equal (value, age) copies are one.
+ */
+function inboxText(inst: Instance, g: Global, receiver: Move, j: number, i: number, sender: Move | null): string {
+  if (receiver.inbox === undefined) receiver.inbox = Array.from({ length: inst.n }, () => new Map())
+  const cache = receiver.inbox[j]
+  let text = cache.get(sender)
+  if (text === undefined) {
+    const merged = new Map<string, Item>()
+    const add = (it: Item) => {
+      const aged = inst.timing === 'asynchronous' ? it : { ...it, age: Math.min(it.age + 1, inst.delay) }
+      merged.set(itemKey(aged), aged)
+    }
+    const taken = receiver.taken[j]
+    for (const it of g.chans[j * inst.n + i]) if (!taken.has(itemKey(it))) add(it)
+    if (sender) for (const s of sender.sent) if (s.to === i) add({ kind: s.kind, fields: s.fields, age: 0 })
+    text = sortedJson([...merged.values()].map((it) => showMessage(inst, it)).sort())
+    cache.set(sender, text)
+  }
+  return text
 }
 
 /** Resolves the constant values: an array in declaration order, a record by name, or the defaults. */
@@ -535,13 +567,16 @@ function constantValues(p: ProtocolModel, constants?: number[] | Record<string, 
 /**
  * Explores G_n of `protocol` breadth-first and returns its reachable canonical states, the number
  * of distinct (source, target) pairs, whether it finished within `limit` states, and the first
- * model error met. A model error ends only the branch of the tick that raised it.
+ * model error met. A model error ends only the branch of the tick that raised it. `budget` bounds
+ * the number of ticks enumerated (crash set, `stable`, and one move per process); exceeding it
+ * stops the exploration as incomplete, like the state limit.
  */
 export function referenceReachable(
   protocol: ProtocolModel,
   n: number,
   constants?: number[] | Record<string, number>,
   limit = 1_000_000,
+  budget = Infinity,
 ): ReferenceResult {
   const consts = constantValues(protocol, constants)
   const t = protocol.timing
@@ -575,17 +610,27 @@ export function referenceReachable(
     queue.push(k)
   }
   let transitions = 0
+  const work = { left: budget }
   while (queue.length > 0) {
     const next: string[] = []
     for (const src of queue) {
       const targets = new Set<string>()
-      for (const h of successors(inst, byKey.get(src)!, errors)) targets.add(canonical(inst, h))
+      let succ: string[]
+      try {
+        succ = successors(inst, byKey.get(src)!, errors, work)
+      } catch (err) {
+        if (err instanceof OutOfBudget) return { states, transitions, complete: false, modelError: errors[0] ?? null }
+        throw err
+      }
+      for (const k of succ) targets.add(k)
       transitions += targets.size
       for (const k of targets) {
         if (states.has(k)) continue
         if (states.size >= limit) return { states, transitions, complete: false, modelError: errors[0] ?? null }
+        const g = fromKey(inst, k)
+        if (canonical(inst, g) !== k) throw new Error(`the reference's two serializers disagree on ${k}`)
         states.add(k)
-        byKey.set(k, fromKey(inst, k))
+        byKey.set(k, g)
         next.push(k)
       }
     }

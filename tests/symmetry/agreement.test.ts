@@ -17,7 +17,7 @@ const LIMIT = 20000
 
 /** Full search: the invariant `not atom` for every assignment of distinct p, q. null: too large. */
 function fullVerdict(inst: Instance, atom: Term): boolean | null {
-  const terms = []
+  const terms: ((w: Uint32Array, off: number) => number)[] = []
   for (let p = 0; p < inst.n; p++) for (let q = 0; q < inst.n; q++) if (p !== q) terms.push(compileTerm(inst, atom, [p, q]))
   const r = explore(inst, { limit: LIMIT, invariant: (w, off) => terms.every((t) => t(w, off) === 0) })
   if (r.limitHit) return null

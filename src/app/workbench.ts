@@ -136,10 +136,12 @@ export class Workbench {
     return lo + 1
   }
 
-  edited(view: BlockView, content: string): void {
+  edited(view: BlockView, edited: string): void {
     const index = this.views.indexOf(view)
     if (index < 0) return
     const seg = this.segs[index]
+    // A formal block's text must end with a line break, or its closing fence would join its last line.
+    const content = view instanceof FormalView && !edited.endsWith('\n') ? edited + '\n' : edited
     const before = this.text.slice(seg.contentFrom, seg.contentTo)
     if (before === content) return
     const delta = content.length - before.length

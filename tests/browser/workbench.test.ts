@@ -4,7 +4,7 @@
 import { readFileSync } from 'node:fs'
 import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { runNotebook } from '../../kernels/api'
+import { analyzeNotebook, runNotebook } from '../../kernels/api'
 import { ARTIFACTS, ROOT, importText, openPage, startWorkbench, type Workbench } from './harness'
 
 let bench: Workbench
@@ -167,6 +167,29 @@ describe('counterexamples', () => {
     await page.locator('.witness svg .tick-band').first().hover({ force: true })
     expect(await page.locator('.witness tr.lit').count()).toBe(1)
     await page.locator('.witness').first().screenshot({ path: join(ARTIFACTS, 'counterexample.png') })
+    await context.close()
+  })
+})
+
+describe('diagnostics while typing', () => {
+  it('marks a malformed property in the editor and lists it under the block with its line', async () => {
+    const { context, page } = await open()
+    const typed = '\nproperty lamp = forall p: always (p.glow and'
+    await page.locator('.block-property .cm-content').first().click()
+    await page.keyboard.press('Control+End')
+    await page.keyboard.type(typed)
+    await page.locator('.block-property .diagnostics li.diag-error').first().waitFor()
+    // A span is underlined (cm-lintRange); an error at the very end is marked as a point (cm-lintPoint).
+    expect(await page.locator('.block-property .cm-lintRange-error, .block-property .cm-lintPoint-error').count()).toBeGreaterThan(0)
+    // Oracle: the kernel in Node, on the same edit (typed at the end of the first property block).
+    const guide = readFileSync(join(ROOT, 'notebooks/guide.md'), 'utf8')
+    const fence = guide.indexOf('```property\n')
+    const close = guide.indexOf('\n```', fence + 12) + 1
+    const edited = guide.slice(0, close) + typed + '\n' + guide.slice(close)
+    const errors = analyzeNotebook(edited).diagnostics.filter((d) => d.severity === 'error')
+    const shown = await page.locator('.block-property .diagnostics li.diag-error').first().textContent()
+    expect(errors.length).toBeGreaterThan(0)
+    expect(shown).toContain(`line ${errors[0].line}, column ${errors[0].column}`)
     await context.close()
   })
 })

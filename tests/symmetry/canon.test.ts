@@ -39,8 +39,10 @@ describe('permuteState', () => {
   it('moves every field as renaming the canonical text does', () => {
     const dst = new Uint32Array(inst.words)
     const wrong: string[] = []
+    // A spread sample of the reachable states keeps the text oracle's cost down.
+    const stride = Math.max(1, Math.floor(count / 1500))
     for (const perm of permutations(3)) {
-      for (let k = 0; k < count; k++) {
+      for (let k = 0; k < count; k += stride) {
         permuteState(inst, words, k * inst.words, perm, dst)
         if (canonicalState(inst, dst, 0) !== renameText(texts[k], perm)) wrong.push(`[${perm}] ${texts[k]}`)
       }

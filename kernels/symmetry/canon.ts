@@ -59,7 +59,8 @@ function checkPerm(n: number, perm: readonly number[]): void {
 
 /**
  * Writes to dst[0..words) the state at src[off..] with processes renamed by `perm` (0-based:
- * process i becomes perm[i]). Throws when `perm` is not a permutation of 0..n-1.
+ * process i becomes perm[i]). Throws when `perm` is not a permutation of 0..n-1. It compiles the
+ * permutation on every call; hot loops use `canonicalizer`, which compiles each permutation once.
  */
 export function permuteState(inst: Instance, src: Uint32Array, off: number, perm: readonly number[], dst: Uint32Array): void {
   checkPerm(inst.n, perm)

@@ -92,7 +92,7 @@ interface Ctx {
   handler: Handler | null
 }
 
-/** `x[q]`, `send beat to q`: the code as it is written, for messages. */
+/** A position as the messages write it. */
 function at(span: Span): string {
   return `line ${span.line}`
 }

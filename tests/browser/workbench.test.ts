@@ -103,7 +103,9 @@ describe('keeping notebooks', () => {
     await page.waitForFunction(() => document.querySelector('.save-state')?.textContent?.startsWith('saved'))
     await page.reload()
     await page.waitForSelector('.cm-editor')
-    expect(await page.locator('.block-protocol .cm-content').first().textContent()).toContain('the lamp on the north pier')
+    // CodeMirror draws only the lines near the viewport: bring the block's end into view first.
+    await page.locator('.block-protocol').first().evaluate((e) => e.scrollIntoView({ block: 'end' }))
+    await page.locator('.block-protocol .cm-line', { hasText: 'the lamp on the north pier' }).first().waitFor({ timeout: 10_000 })
     await context.close()
   })
 

@@ -4,6 +4,7 @@
 // never keeps a copy of the text that could drift from the notebook.
 import type { CheckRow, Progress } from '../../kernels/result'
 import { button, el } from './dom'
+import { atomColour, counterexampleSvg } from './diagram'
 import { BlockEditor, type NotebookDiagnostic } from './editor'
 import { propertiesToTex } from './formula-tex'
 import { renderProse, toFragment } from './markdown'
@@ -156,6 +157,26 @@ export class CheckLineView {
     if (!this.root.classList.contains('running')) this.status.textContent = fresh ? 'checked' : 'out of date'
     this.findings.replaceChildren(toFragment(findingsMarkup(rows)), el('p', { class: 'caution' }, CAUTION))
     for (const tr of this.findings.querySelectorAll<HTMLElement>('tr[data-tick]')) tr.tabIndex = 0
+    for (const w of this.findings.querySelectorAll<HTMLElement>('.witness[data-row]')) {
+      const row = rows.find((r) => String(r.row) === w.dataset.row)
+      if (row?.counterexample?.atoms?.length) w.querySelector('.witness-message')!.after(this.atomChooser(row, w.querySelector('.diagram')!))
+    }
+  }
+
+  /** Checkboxes that choose which atoms the diagram shades. */
+  private atomChooser(row: CheckRow, diagram: Element): HTMLElement {
+    const cx = row.counterexample!
+    const chosen = new Set(cx.atoms!.map((_, i) => i))
+    const boxes = cx.atoms!.map((a, i) => {
+      const box = el('input', { type: 'checkbox', checked: true })
+      box.addEventListener('change', () => {
+        if (box.checked) chosen.add(i)
+        else chosen.delete(i)
+        diagram.replaceChildren(toFragment(counterexampleSvg(cx, row.processes, { atoms: [...chosen] })))
+      })
+      return el('label', { class: 'atom-choice' }, box, el('span', { class: 'swatch', style: `background:${atomColour(i)}` }), `a${i + 1}: ${a.text}`)
+    })
+    return el('fieldset', { class: 'atom-chooser' }, el('legend', {}, 'shade where these hold'), ...boxes)
   }
 
   /** Marks the shown rows out of date at once (before the kernel has re-read the notebook). */

@@ -166,6 +166,12 @@ describe('counterexamples', () => {
     expect(await page.locator('.verdict .word').first().textContent()).toBe('violated')
     expect(await page.locator('.witness svg .lane').count()).toBe(report.checks[0].processes)
     expect(await page.locator('.witness table.ticks tr[data-tick]').count()).toBe(report.checks[0].counterexample!.ticks.length)
+    // Unticking an atom removes its shading from the diagram.
+    const bands = await page.locator('.witness svg .atom-band').count()
+    await page.locator('.atom-chooser input').last().uncheck()
+    expect(await page.locator('.witness svg .atom-band').count()).toBeLessThan(bands)
+    await page.locator('.atom-chooser input').last().check()
+    expect(await page.locator('.witness svg .atom-band').count()).toBe(bands)
     await page.locator('.witness svg .tick-band').first().hover({ force: true })
     expect(await page.locator('.witness tr.lit').count()).toBe(1)
     await page.locator('.witness').first().screenshot({ path: join(ARTIFACTS, 'counterexample.png') })

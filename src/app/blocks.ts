@@ -133,6 +133,8 @@ export class CheckLineView {
   private findings = el('div', { class: 'check-findings' })
   private runButton: HTMLButtonElement
   private stopButton: HTMLButtonElement
+  private shownRows: CheckRow[] | null = null
+  private shownFresh = false
   private staleNote = el('p', { class: 'stale-note' }, 'Out of date: the check, its protocol or a property it uses changed since this ran.')
 
   constructor(host: BlockHost, readonly check: number, source: string) {
@@ -146,6 +148,10 @@ export class CheckLineView {
 
   /** Shows rows (or nothing yet), fresh or out of date. */
   show(rows: CheckRow[] | null, fresh: boolean): void {
+    // Every analysis re-shows every line; drawing the same rows again would only cost time.
+    if (rows === this.shownRows && fresh === this.shownFresh && rows) return
+    this.shownRows = rows
+    this.shownFresh = fresh
     this.root.classList.toggle('stale', !!rows && !fresh)
     this.root.classList.toggle('fresh', !!rows && fresh)
     this.staleNote.hidden = !rows || fresh
@@ -182,6 +188,7 @@ export class CheckLineView {
   /** Marks the shown rows out of date at once (before the kernel has re-read the notebook). */
   markStale(): void {
     if (!this.root.classList.contains('fresh')) return
+    this.shownFresh = false
     this.root.classList.replace('fresh', 'stale')
     this.staleNote.hidden = false
     if (!this.root.classList.contains('running')) this.status.textContent = 'out of date'

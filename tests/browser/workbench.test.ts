@@ -201,3 +201,24 @@ describe('diagnostics while typing', () => {
     await context.close()
   })
 })
+
+describe('reasons', () => {
+  it('links each refused rule to its line, and the link puts the cursor there', async () => {
+    const quay = "# Quay bells\n\n```protocol\nprotocol quay {\n  timing synchronous(delay: 1, idle: 1)\n  faults crash\n  message bell\n  state heard[peer]: bool = false\n  state loud: bool = false\n  on bell from q { heard[q] := true }\n  step {\n    loud := some q: heard[q]\n    if loud { broadcast bell }\n  }\n}\n```\n\n```property\nproperty rings = forall p, q: always (p.heard[q] implies alive(q) or crashed(q))\n```\n\n```check\ncheck quay: rings\n```\n"
+    // Oracle: the kernel in Node refuses the cutoff with reasons (an aggregate feeds a broadcast).
+    const report = await runNotebook(quay, 'quay.md', {})
+    const reason = report.checks[0].cutoff.reasons[0]
+    const { context, page } = await open()
+    await importText(page, 'quay.md', quay)
+    await page.locator('.doc-title', { hasText: 'Quay bells' }).waitFor()
+    await page.waitForSelector('.check-line button.run:not([disabled])')
+    await page.locator('.check-line button.run').first().click()
+    await page.waitForSelector('.check-line.fresh')
+    const link = page.locator(`a.jump[data-line="${reason.line}"]`).first()
+    expect(await link.textContent()).toBe(`line ${reason.line}, column ${reason.column}`)
+    await link.click()
+    const at = await page.evaluate(() => document.activeElement?.closest('.block-protocol')?.querySelector('.cm-focused .cm-activeLine')?.textContent ?? null)
+    expect(at).toBe(quay.split('\n')[reason.line - 1])
+    await context.close()
+  })
+})

@@ -27,6 +27,8 @@ interface CheckState {
   key: string
   /** Indices of the segments whose text the inputs come from. */
   deps: Set<number>
+  /** The check line's text, to find its earlier findings after blocks move. */
+  source: string
   rows: CheckRow[] | null
   fresh: boolean
 }
@@ -219,7 +221,7 @@ export class Workbench {
       seg.kind === 'prose' || seg.kind === 'front' ? new ProseView(this.host, seg, seg.kind === 'front') : new FormalView(this.host, seg, seg.kind, keys))
     this.docEl.replaceChildren(...this.views.map((v) => v.root))
     this.showTitle()
-    this.checks = []
+    // Earlier findings stay (out of date when their inputs changed) until the analysis re-sorts them.
     this.scheduleAnalysis(0)
   }
 
@@ -337,10 +339,10 @@ export class Workbench {
         try { rows = (await this.shelf.result(key)) ?? null } catch { rows = null }
         if (rows) this.memo.set(key, rows)
       }
-      const previous = this.checks[c]
+      const previous = this.checks.find((p) => p.source === check.source) ?? this.checks[c]
       const fresh = rows !== null
       if (!rows && previous?.rows) rows = previous.rows
-      next.push({ inputs, key, deps, rows, fresh })
+      next.push({ inputs, key, deps, source: check.source, rows, fresh })
     }
     if (text !== this.text) return
     this.checks = next

@@ -1,4 +1,4 @@
-// Exports and the shelf in the built workbench. The record is compared with the kernel run
+// Exports, the shelf and block editing in the built workbench. The record is compared with the kernel run
 // directly in Node on the same notebook (the oracle); the report is read as text.
 import { readFileSync } from 'node:fs'
 import { join } from 'node:path'
@@ -59,6 +59,36 @@ describe('the shelf', () => {
     await page.waitForFunction(() => document.querySelectorAll('.shelf-list li').length === 1)
     await page.locator('.notice button.undo').click()
     await page.waitForFunction(() => document.querySelectorAll('.shelf-list li').length === 2)
+    await context.close()
+  })
+})
+
+describe('blocks', () => {
+  it('inserts, moves and removes blocks as spans of the notebook text', async () => {
+    const { context, page } = await open()
+    const blocks = page.locator('.notebook > .block')
+    const before = await blocks.count()
+    const kinds = () => blocks.evaluateAll((els) => els.map((e) => [...e.classList].find((c) => c.startsWith('block-') && c !== 'block-formal')))
+    const original = await kinds()
+    // Insert a property block after the first protocol block.
+    const protocolIndex = original.indexOf('block-protocol')
+    const protocol = blocks.nth(protocolIndex)
+    await protocol.hover()
+    await protocol.locator('details.add summary').click()
+    await protocol.getByRole('button', { name: 'insert a properties block after this one' }).click()
+    expect(await blocks.count()).toBe(before + 1)
+    expect((await kinds())[protocolIndex + 1]).toBe('block-property')
+    // Move it up above the protocol, then remove it and put it back.
+    const added = blocks.nth(protocolIndex + 1)
+    await added.hover()
+    await added.getByRole('button', { name: 'move this block up' }).click()
+    expect((await kinds()).slice(protocolIndex, protocolIndex + 2)).toEqual(['block-property', 'block-protocol'])
+    const moved = blocks.nth(protocolIndex)
+    await moved.hover()
+    await moved.getByRole('button', { name: 'remove this block' }).click()
+    expect(await kinds()).toEqual(original)
+    await page.locator('.notice button.undo').click()
+    expect(await blocks.count()).toBe(before + 1)
     await context.close()
   })
 })

@@ -92,3 +92,18 @@ describe('blocks', () => {
     await context.close()
   })
 })
+
+describe('refused writes', () => {
+  it('tells the user when the browser refuses to save', async () => {
+    const { context, page } = await open()
+    // Simulate a full disk: every IndexedDB write now fails the way a quota error does.
+    await page.evaluate(() => {
+      IDBObjectStore.prototype.put = function () { throw new DOMException('the quota is used up', 'QuotaExceededError') }
+    })
+    await page.locator('.block-protocol .cm-content').first().click()
+    await page.keyboard.type('x')
+    await page.locator('.notice', { hasText: 'Could not save this notebook' }).waitFor()
+    expect(await page.locator('.save-state').textContent()).toBe('not saved')
+    await context.close()
+  })
+})

@@ -52,3 +52,10 @@ describe('sweptConstants', () => {
     expect(sweptConstants([row({ constants: { a: 1, b: 1 } }), row({ constants: { a: 2, b: 1 } })])).toEqual(['a'])
   })
 })
+
+describe('size agreement', () => {
+  it('says so when explicit sizes agree with the cutoff instance', () => {
+    expect(findingsMarkup([row({ agreement: true })])).toContain('agrees with the cutoff instance')
+    expect(findingsMarkup([row({})])).not.toContain('agrees with the cutoff instance')
+  })
+})

@@ -78,6 +78,10 @@ export class TickEngine {
   private readonly combo: Int32Array
   private readonly live: Int32Array
   private recordNotes: OutcomeNote[] | null = null
+  private readonly choice = { crashed: 0, stabilized: false, bound: 0, combo: new Int32Array(0) as Int32Array }
+  private emit: ((dst: Uint32Array, stepped: number, receivedFrom: number) => unknown) | null = null
+  /** Made once: passing a fresh closure per state would allocate in the hot loop. */
+  private readonly forward = (dst: Uint32Array, _c: unknown, stepped: number, recv: number): unknown => this.emit!(dst, stepped, recv)
 
   constructor(readonly layout: Layout, readonly program: Program) {
     const W = layout.words
@@ -159,7 +163,9 @@ export class TickEngine {
         if (e && !error) error = e
       }
     }
-    this.forEachCombination(aliveMask, bounds, this.pool, (dst, _choice, stepped, recv) => emit(dst, stepped, recv))
+    this.emit = emit
+    this.forEachCombination(aliveMask, bounds, this.pool, this.forward)
+    this.emit = null
     return error
   }
 
@@ -470,7 +476,8 @@ export class TickEngine {
     const n = layout.n
     const crashes = this.program.protocol.faults === 'crash'
     const wasStable = layout.stable ? readField(cur, 0, layout.stable) : 0
-    const choice = { crashed: 0, stabilized: false, bound: 0, combo }
+    const choice = this.choice
+    choice.combo = combo
     // Subsets of aliveMask, from aliveMask down to 0 (only 0 without crash faults).
     let c = crashes ? aliveMask : 0
     for (;;) {

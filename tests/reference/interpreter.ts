@@ -174,6 +174,20 @@ function store(inst: Instance, l: Local, t: Target, env: Env, value: number): vo
 /** A branch of a process's run: a local state, or the model error that ended it. */
 type Branch = Local | ModelError
 
+/**
+ * Branches that reached the same values having sent the same messages continue identically: keep
+ * one of each, so that chained choices do not multiply beyond the distinct local states.
+ */
+function distinctLocals(ls: Local[]): Local[] {
+  if (ls.length < 2) return ls
+  const seen = new Map<string, Local>()
+  for (const l of ls) {
+    const sent = l.sent.map((x) => `${x.to}:${x.kind}(${x.fields.join(',')})`).sort().join(' ')
+    seen.set(JSON.stringify(l.vals) + '/' + sent, l)
+  }
+  return [...seen.values()]
+}
+
 /** Runs statements from one local state; returns every branch (nondeterministic choices fan out). */
 function execList(inst: Instance, stmts: Stmt[], start: Local, env: Env): Branch[] {
   let live: Local[] = [start]
@@ -186,7 +200,7 @@ function execList(inst: Instance, stmts: Stmt[], start: Local, env: Env): Branch
         else next.push(b)
       }
     }
-    live = next
+    live = distinctLocals(next)
   }
   return [...live, ...dead]
 }
@@ -257,7 +271,7 @@ function execStmt(inst: Instance, s: Stmt, l0: Local, env: Env): Branch[] {
             else next.push(b)
           }
         }
-        live = next
+        live = distinctLocals(next)
       }
       return [...live, ...dead]
     }
@@ -410,7 +424,7 @@ interface Move {
 }
 
 /** Every move of an alive process i in a tick, bounded or not; model errors go to `errors`. */
-function movesOf(inst: Instance, g: Global, i: number, bounded: boolean, errors: string[]): Move[] {
+function movesOf(inst: Instance, g: Global, i: number, bounded: boolean, errors: string[], budget: { left: number }): Move[] {
   const { n, p } = inst
   const me = g.procs[i]
   const moves: Move[] = []
@@ -442,7 +456,9 @@ function movesOf(inst: Instance, g: Global, i: number, bounded: boolean, errors:
             else next.push(b)
           }
         }
-        live = next
+        live = distinctLocals(next)
+        budget.left -= live.length
+        if (budget.left < 0) throw new OutOfBudget()
       }
     }
     const env: Env = { self: i, binders: new Array(p.binders.length).fill(-1), fields: null }
@@ -503,7 +519,7 @@ function successors(inst: Instance, g: Global, errors: string[], budget: { left:
           continue
         }
         const key = `${i}/${bounded}`
-        if (!movesCache.has(key)) movesCache.set(key, distinctMoves(movesOf(inst, g, i, bounded, errors)))
+        if (!movesCache.has(key)) movesCache.set(key, distinctMoves(movesOf(inst, g, i, bounded, errors, budget)))
         options.push(movesCache.get(key)!)
       }
       const pick: (Move | null)[] = new Array(n)
@@ -568,8 +584,8 @@ function constantValues(p: ProtocolModel, constants?: number[] | Record<string, 
  * Explores G_n of `protocol` breadth-first and returns its reachable canonical states, the number
  * of distinct (source, target) pairs, whether it finished within `limit` states, and the first
  * model error met. A model error ends only the branch of the tick that raised it. `budget` bounds
- * the number of ticks enumerated (crash set, `stable`, and one move per process); exceeding it
- * stops the exploration as incomplete, like the state limit.
+ * the work: ticks enumerated (crash set, `stable`, and one move per process) plus handler branches
+ * run; exceeding it stops the exploration as incomplete, like the state limit.
  */
 export function referenceReachable(
   protocol: ProtocolModel,

@@ -138,7 +138,7 @@ export class CheckLineView {
   private staleNote = el('p', { class: 'stale-note' }, 'Out of date: the check, its protocol or a property it uses changed since this ran.')
 
   constructor(host: BlockHost, readonly check: number, source: string) {
-    this.runButton = button('check it', () => host.runCheck(this.check), { class: 'run', 'aria-label': `run: ${source}` })
+    this.runButton = button('check it', () => host.runCheck(this.check), { class: 'run', 'aria-label': `run: ${source}`, 'aria-keyshortcuts': 'Alt+Shift+C', title: 'Alt-Shift-C in the check editor runs its checks' })
     this.stopButton = button('stop', () => host.stop(), { class: 'stop', 'aria-label': `stop: ${source}`, hidden: true })
     this.root = el('div', { class: 'check-line', 'data-check': String(check) },
       el('div', { class: 'check-head' }, el('code', { class: 'check-source' }, source), this.runButton, this.stopButton, this.status),
@@ -196,7 +196,7 @@ export class CheckLineView {
 
   setRunnable(ok: boolean, why: string): void {
     this.runButton.disabled = !ok
-    this.runButton.title = ok ? '' : why
+    this.runButton.title = ok ? 'Alt-Shift-C in the check editor runs its checks' : why
   }
 
   running(on: boolean, text = ''): void {

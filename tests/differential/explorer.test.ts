@@ -132,3 +132,52 @@ describe('the differential comparison itself', () => {
     expect(diffOf('a vs b', referenceReachable(a, 2), reachableCanonical(compileInstance(b, 2, [])))).not.toBeNull()
   })
 })
+
+describe('the generated protocols', () => {
+  it('cover every statement, expression form, handler shape, timing model and fault mode', () => {
+    const texts = Array.from({ length: SEEDS }, (_, k) => generateNotebook(k + 1)).join('\n')
+    const constructs: [string, RegExp][] = [
+      ['assignment', /^\s+\w+ := (?!one of)/m],
+      ['entry assignment', /^\s+\w+\[[qrs]\] := /m],
+      ['else if', /\} else if /],
+      ['else', /\} else \{/],
+      ['for', /^\s+for [qrs] \{/m],
+      ['broadcast with fields', /broadcast \w+\(/],
+      ['broadcast without fields', /broadcast \w+\n/],
+      ['send', /send \w+.* to [qrs]/],
+      ['one of a set', /:= one of \{/],
+      ['one of a range', /:= one of \d+\.\.\d+/],
+      ['skip', /^\s+skip$/m],
+      ['arithmetic', / [-+*] /],
+      ['division', / \/ /],
+      ['modulo', / % /],
+      ['min', /min\(/],
+      ['max', /max\(/],
+      ['comparison', / (<=|>=|!=|<|>) /],
+      ['and', / and /],
+      ['or', / or /],
+      ['implies', / implies /],
+      ['not', /\(not /],
+      ['if-then-else', /\(if .* then .* else /],
+      ['count', /\(count [qrs]: /],
+      ['some', /\(some [qrs]: /],
+      ['every', /\(every [qrs]: /],
+      ['handler with fields', /on \w+\(\w+(, \w+)?\) from q/],
+      ['handler without fields', /on \w+ from q/],
+      ['any', /= any$/m],
+      ['enum', /: \{calm, storm\}|: \{ebb, flood\}/],
+      ['synchronous', /timing synchronous\(/],
+      ['stabilizing', /timing stabilizing\(/],
+      ['asynchronous', /timing asynchronous/],
+      ['faults crash', /faults crash/],
+      ['faults none', /faults none/],
+      ['two message kinds', /message tide/],
+    ]
+    expect(constructs.filter(([, re]) => !re.test(texts)).map(([name]) => name)).toEqual([])
+  })
+
+  it('are the same text for the same seed', () => {
+    expect(generateNotebook(7)).toBe(generateNotebook(7))
+    expect(generateNotebook(7)).not.toBe(generateNotebook(8))
+  })
+})

@@ -492,7 +492,7 @@ function distinctMoves(moves: Move[]): Move[] {
  * move, since there are far fewer moves than combinations); `referenceReachable` checks every new
  * state's text against `canonical`, the serializer written from the contract.
  */
-function successors(inst: Instance, g: Global, errors: string[], budget: { left: number }): string[] {
+function successors(inst: Instance, g: Global, errors: string[], budget: { left: number }, marks?: number[]): string[] {
   const { n } = inst
   const alive: number[] = []
   for (let i = 0; i < n; i++) if (g.procs[i].alive) alive.push(i)
@@ -529,6 +529,7 @@ function successors(inst: Instance, g: Global, errors: string[], budget: { left:
           const chans = chanOrder.map(([j, r, key]) => key + ':' + (up(r) ? inboxText(inst, g, pick[r]!, j, r, pick[j]) : '[]'))
           const procs = pick.map((m, r) => (m === null ? downText[r] : procText(inst, g, m, r)))
           out.push('{"channels":{' + chans.join(',') + '},"procs":[' + procs.join(',') + tail)
+          if (marks) marks.push(fairMarks(inst, g, pick, stable))
           return
         }
         for (const m of options[i]) {
@@ -540,6 +541,37 @@ function successors(inst: Instance, g: Global, errors: string[], budget: { left:
     }
   }
   return out
+}
+
+/**
+ * The fairness conditions of semantics.md that this tick meets, as bits: bit i when process i
+ * steps or is down (crashed now or before: a process down in a cycle never comes back); bit
+ * n + j * n + i when channel j->i was empty at the start of the tick, or i received from it, or i is
+ * down; bit n + n * n when the tick ends stable (stabilizing only; otherwise always set).
+ */
+function fairMarks(inst: Instance, g: Global, pick: (Move | null)[], stable: number): number {
+  const { n } = inst
+  let m = 0
+  for (let i = 0; i < n; i++) {
+    const mv = pick[i]
+    if (mv === null || mv.stepped) m |= 1 << i
+    for (let j = 0; j < n; j++) {
+      if (j === i) continue
+      if (mv === null || g.chans[j * n + i].length === 0 || mv.taken[j].size > 0) m |= 1 << (n + j * n + i)
+    }
+  }
+  if (inst.timing !== 'stabilizing' || stable === 1) m |= 1 << (n + n * n)
+  return m
+}
+
+/** Every fairness bit of `fairMarks` for n processes (bits j * n + j of channels are never used). */
+export function allFairMarks(n: number): number {
+  let m = 0
+  for (let i = 0; i < n; i++) {
+    m |= 1 << i
+    for (let j = 0; j < n; j++) if (j !== i) m |= 1 << (n + j * n + i)
+  }
+  return m | (1 << (n + n * n))
 }
 
 /** Process i after an alive move: idle resets on a step and grows (capped) otherwise. */
@@ -653,6 +685,93 @@ export function referenceReachable(
     queue = next
   }
   return { states, transitions, complete: true, modelError: errors[0] ?? null }
+}
+
+/** A reachable state as the reference keeps it: plain values, processes and channels 0-based. */
+export interface ReferenceState {
+  procs: { alive: number; idle: number; vals: (number | number[])[] }[]
+  /** Channel j->i at index j * n + i: kind (declaration index), field values, age. */
+  chans: { kind: number; fields: number[]; age: number }[][]
+  stable: number
+}
+
+/** The reachable state graph, with the fairness bits (see `allFairMarks`) that each edge can meet. */
+export interface ReferenceGraph {
+  keys: string[]
+  states: ReferenceState[]
+  initial: number[]
+  /** edges[s]: target index -> union of the fairness bits of the ticks from s to that target. */
+  edges: Map<number, number>[]
+  complete: boolean
+  modelError: string | null
+  /** Constant values used (declaration order). */
+  constants: number[]
+}
+
+/**
+ * The whole reachable graph of G_n, for the reference temporal check (tests/reference/temporal.ts).
+ * Same exploration as `referenceReachable` (n <= 4: the fairness bits must fit in 31).
+ */
+export function referenceGraph(
+  protocol: ProtocolModel,
+  n: number,
+  constants?: number[] | Record<string, number>,
+  limit = 1_000_000,
+  budget = Infinity,
+): ReferenceGraph {
+  const consts = constantValues(protocol, constants)
+  const t = protocol.timing
+  const inst: Instance = {
+    p: protocol,
+    n,
+    consts,
+    timing: t.kind,
+    delay: t.kind === 'asynchronous' ? 0 : constExpr(t.delay, consts),
+    idle: t.kind === 'asynchronous' ? 0 : constExpr(t.idle, consts),
+    varBounds: protocol.vars.map((v) => typeBounds(v.type, consts)),
+    fieldBounds: protocol.messages.map((m) => m.fields.map((f) => typeBounds(f.type, consts))),
+  }
+  const out: ReferenceGraph = { keys: [], states: [], initial: [], edges: [], complete: true, modelError: null, constants: consts }
+  const index = new Map<string, number>()
+  const errors: string[] = []
+  const add = (k: string, g: Global): number => {
+    let id = index.get(k)
+    if (id === undefined) {
+      id = out.keys.length
+      index.set(k, id)
+      out.keys.push(k)
+      out.states.push(g)
+      out.edges.push(new Map())
+    }
+    return id
+  }
+  let inits: Global[]
+  try {
+    inits = initialStates(inst)
+  } catch (err) {
+    if (err instanceof ModelError) return { ...out, modelError: err.message }
+    throw err
+  }
+  for (const g of inits) out.initial.push(add(canonical(inst, g), g))
+  out.initial = [...new Set(out.initial)]
+  const work = { left: budget }
+  for (let s = 0; s < out.keys.length; s++) {
+    if (out.keys.length > limit) return { ...out, complete: false, modelError: errors[0] ?? null }
+    const marks: number[] = []
+    let succ: string[]
+    try {
+      succ = successors(inst, out.states[s], errors, work, marks)
+    } catch (err) {
+      if (err instanceof OutOfBudget) return { ...out, complete: false, modelError: errors[0] ?? null }
+      throw err
+    }
+    const e = out.edges[s]
+    succ.forEach((k, x) => {
+      const id = index.has(k) ? index.get(k)! : add(k, fromKey(inst, k))
+      e.set(id, (e.get(id) ?? 0) | marks[x])
+    })
+  }
+  return { ...out, modelError: errors[0] ?? null }
 }
 
 /** Reads a canonical state back into the working shape (the canonical text is the only copy kept). */

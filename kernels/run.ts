@@ -6,6 +6,7 @@ import type { RowPlan, RunOptions } from './api'
 import { analyzeNotebook } from './language/analyze'
 import type { CheckModel, Formula, NotebookModel, PropertyModel, ProtocolModel, Term } from './language/model'
 import { explore, type ExploreResult } from './explore/reach'
+import { modelErrorCounterexample, traceCounterexample } from './explore/trace'
 import { fromModel } from './logic/ltl'
 import { Int32Buffer } from './logic/buffer'
 import { checkLtl, type System } from './logic/product'
@@ -111,14 +112,6 @@ function sourceOf(prop: PropertyModel, span: { from: number; to: number }): stri
   return prop.block.text.slice(span.from - prop.block.from, span.to - prop.block.from).replace(/\s+/g, ' ')
 }
 
-/** Ticks along a path of store states (each consecutive pair is a transition). */
-function ticksAlong(inst: Instance, data: Uint32Array, path: number[]) {
-  const W = inst.words
-  const ticks = []
-  for (let i = 0; i + 1 < path.length; i++) ticks.push(inst.describeTick(data, path[i] * W, data, path[i + 1] * W, i))
-  return ticks
-}
-
 function atomBands(inst: Instance, data: Uint32Array, path: number[], prop: PropertyModel, terms: Term[], a: number[]) {
   const W = inst.words
   return terms.map((t) => {
@@ -152,13 +145,18 @@ export interface FairGraph {
 /**
  * Fairness sets (semantics.md) as transition marks: bit i, process i steps or is crashed; then one
  * bit per channel j->i: i is crashed, or the channel is empty at the source, or i receives from it
- * in the tick; last, under stabilizing, the edge ends in a stable state. An edge that reaches the
- * same target with other marks (a different set of processes stepping) is a separate edge.
+ * in the tick; last, under stabilizing, the edge ends in a stable state.
  */
-export function fairGraph(inst: Instance, r: ExploreResult, shouldStop?: () => boolean): FairGraph | null {
+export interface FairMarks {
+  fairnessSets: number
+  /** The marks every edge out of this source carries (crashes and empty channels). */
+  sourceMarks(src: Uint32Array, off: number): number
+  /** The marks of one edge, given its source marks and what `successors` reported. */
+  edgeMarks(base: number, dst: Uint32Array, dstOff: number, stepped: number, receivedFrom: number): number
+}
+
+export function fairMarks(inst: Instance): FairMarks {
   const n = inst.n
-  const W = inst.words
-  const store = r.store
   const crashed = Array.from({ length: n }, (_, i) => isCrashed(inst, i))
   const channels: { i: number; bit: number; index: number; test: (w: Uint32Array, o: number) => boolean }[] = []
   for (let j = 0; j < n; j++) {
@@ -169,6 +167,33 @@ export function fairGraph(inst: Instance, r: ExploreResult, shouldStop?: () => b
   }
   const stab = inst.protocol.timing.kind === 'stabilizing' ? isStable(inst) : null
   const fairnessSets = n + channels.length + (stab ? 1 : 0)
+  return {
+    fairnessSets,
+    sourceMarks(src, off) {
+      let base = 0
+      for (let i = 0; i < n; i++) if (crashed[i](src, off)) base |= 1 << i
+      for (const c of channels) if ((base >> c.i) & 1 || c.test(src, off)) base |= 1 << c.bit
+      return base
+    },
+    edgeMarks(base, dst, dstOff, stepped, receivedFrom) {
+      let m = base | stepped
+      for (const c of channels) if ((receivedFrom >> c.index) & 1) m |= 1 << c.bit
+      for (let i = 0; i < n; i++) if (!((m >> i) & 1) && crashed[i](dst, dstOff)) m |= 1 << i
+      if (stab && stab(dst, dstOff)) m |= 1 << (fairnessSets - 1)
+      return m
+    },
+  }
+}
+
+/**
+ * The state graph of a completely explored instance with the fairness marks of every edge. An edge
+ * that reaches the same target with other marks (other processes stepping) is a separate edge.
+ * Returns null when stopped.
+ */
+export function fairGraph(inst: Instance, r: ExploreResult, shouldStop?: () => boolean): FairGraph | null {
+  const W = inst.words
+  const store = r.store
+  const fm = fairMarks(inst)
   const initial: number[] = []
   const init = inst.initialStates()
   for (let off = 0; off < init.length; off += W) {
@@ -185,10 +210,7 @@ export function fairGraph(inst: Instance, r: ExploreResult, shouldStop?: () => b
   const emit = (dst: Uint32Array, stepped: number, receivedFrom: number): boolean => {
     const t = store.lookup(dst, 0)
     if (t < 0) return false
-    let m = base | stepped
-    for (const c of channels) if ((receivedFrom >> c.index) & 1) m |= 1 << c.bit
-    for (let i = 0; i < n; i++) if (!((m >> i) & 1) && crashed[i](dst, 0)) m |= 1 << i
-    if (stab && stab(dst, 0)) m |= 1 << (fairnessSets - 1)
+    const m = fm.edgeMarks(base, dst, 0, stepped, receivedFrom)
     const td = target.data, md = marks.data
     for (let k = rowStart; k < target.length; k++) if (td[k] === t && md[k] === m) return false
     target.push(t)
@@ -199,13 +221,40 @@ export function fairGraph(inst: Instance, r: ExploreResult, shouldStop?: () => b
     if ((s & 1023) === 0 && shouldStop?.()) return null
     start[s] = rowStart = target.length
     store.get(s, src, 0)
-    base = 0
-    for (let i = 0; i < n; i++) if (crashed[i](src, 0)) base |= 1 << i
-    for (const c of channels) if ((base >> c.i) & 1 || c.test(src, 0)) base |= 1 << c.bit
+    base = fm.sourceMarks(src, 0)
     inst.successors(src, 0, emit)
   }
   start[states] = target.length
-  return { start, target: target.data.subarray(0, target.length), marks: marks.data.subarray(0, marks.length), initial, fairnessSets }
+  return { start, target: target.data.subarray(0, target.length), marks: marks.data.subarray(0, marks.length), initial, fairnessSets: fm.fairnessSets }
+}
+
+/**
+ * The ticks of a lasso (states `path`, the last equal to path[loopStart]). Each edge of the loop is
+ * told as the tick that carries the marks the fair cycle used, so that the loop shown is fair:
+ * processes that must step infinitely often are seen stepping.
+ */
+function lassoTicks(inst: Instance, store: ExploreResult['store'], path: number[], loopStart: number, cycleMarks: number[]) {
+  const W = inst.words
+  const fm = fairMarks(inst)
+  const src = new Uint32Array(W)
+  const data = store.data
+  const ticks = []
+  for (let i = 0; i + 1 < path.length; i++) {
+    let want: { stepped: number; receivedFrom: number } | undefined
+    if (i >= loopStart) {
+      const need = cycleMarks[i - loopStart]
+      store.get(path[i], src, 0)
+      const base = fm.sourceMarks(src, 0)
+      const to = path[i + 1]
+      inst.successors(src, 0, (dst, stepped, receivedFrom) => {
+        if (store.lookup(dst, 0) !== to || fm.edgeMarks(base, dst, 0, stepped, receivedFrom) !== need) return false
+        want = { stepped, receivedFrom }
+        return true
+      })
+    }
+    ticks.push(inst.describeTick(data, path[i] * W, data, path[i + 1] * W, i + 1, want))
+  }
+  return ticks
 }
 
 /** The system the temporal product reads: a fair graph and the atoms of one assignment. */
@@ -303,29 +352,22 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   row.method = inv ? 'invariant' : 'ltl'
   row.assignment = named(prop, chosen[0] ?? [])
   const data = r.store.data
-  if (r.outcome === 'model-error' && r.error) {
-    const path = r.trace ?? []
+  if (r.outcome === 'model-error' && r.error && r.trace) {
     row.verdict = 'violated'
     row.complete = false
-    row.counterexample = {
-      kind: 'model-error',
-      message: r.error.message,
-      initial: path.length ? inst.describeInitial(data, path[0] * inst.words) : [],
-      ticks: ticksAlong(inst, data, path),
-    }
+    row.counterexample = modelErrorCounterexample(inst, r.store, r.trace, r.error)
     return row
   }
-  if (r.outcome === 'violation') {
-    const path = r.trace ?? []
+  if (r.outcome === 'violation' && r.trace) {
+    const path = r.trace
     const a = chosen[failed] ?? chosen[0]
+    const ticks = path.length - 1
     row.verdict = 'violated'
     row.complete = false
     row.assignment = named(prop, a)
     row.counterexample = {
-      kind: 'trace',
-      message: `\`${prop.name}\` fails after ${path.length - 1} tick${path.length === 2 ? '' : 's'}: the state reached breaks \`${sourceOf(prop, inv!.span)}\``,
-      initial: path.length ? inst.describeInitial(data, path[0] * inst.words) : [],
-      ticks: ticksAlong(inst, data, path),
+      ...traceCounterexample(inst, r.store, path,
+        `\`${prop.name}\` fails after ${ticks} tick${ticks === 1 ? '' : 's'}: the state reached breaks \`${sourceOf(prop, inv!.span)}\``),
       atoms: atomBands(inst, data, path, prop, terms, a),
     }
     return row
@@ -373,7 +415,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
         kind: 'lasso',
         message: `a fair run violates \`${prop.name}\`: after ${v.prefix.length} tick${v.prefix.length === 1 ? '' : 's'} it repeats a loop of ${v.cycle.length} forever`,
         initial: inst.describeInitial(data, path[0] * inst.words),
-        ticks: ticksAlong(inst, data, path),
+        ticks: lassoTicks(inst, r.store, path, v.prefix.length, v.cycleFairness),
         loopStart: v.prefix.length,
         atoms: atomBands(inst, data, path, prop, terms, a),
       }

@@ -31,8 +31,12 @@ export interface Instance {
    * model error met (that branch has no successor), or null.
    */
   successors(src: Uint32Array, off: number, emit: (dst: Uint32Array, stepped: number, receivedFrom: number) => unknown): ModelError | null
-  /** The tick from one state to a given successor, described as records.md says (`tick` is its number). */
-  describeTick(src: Uint32Array, srcOff: number, dst: Uint32Array, dstOff: number, tick?: number): TickRecord
+  /**
+   * The tick from one state to a given successor, described as records.md says (`tick` is its
+   * number). Where several ticks lead there, `want` picks the one in which exactly these processes
+   * stepped and these channels delivered (as `successors` reports them), when there is one.
+   */
+  describeTick(src: Uint32Array, srcOff: number, dst: Uint32Array, dstOff: number, tick?: number, want?: { stepped: number; receivedFrom: number }): TickRecord
   /** Process variable values as people see them (booleans, numbers, enum labels), `x` and `x[j]`. */
   describeInitial(src: Uint32Array, off: number): InitialProcess[]
 }
@@ -101,8 +105,8 @@ export function compileInstance(protocol: ProtocolModel, n: number, constants: n
       return engine.successors(src, off, emit)
     },
 
-    describeTick(src, srcOff, dst, dstOff, tick = 0): TickRecord {
-      const choice = engine.explain(src, srcOff, dst, dstOff)
+    describeTick(src, srcOff, dst, dstOff, tick = 0, want): TickRecord {
+      const choice = engine.explain(src, srcOff, dst, dstOff, want)
       if (!choice) throw new Error('describeTick: the second state is not a successor of the first')
       const crashed: number[] = []
       const stepped: number[] = []

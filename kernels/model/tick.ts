@@ -170,7 +170,7 @@ export class TickEngine {
   }
 
   /** The combination that turns src into dst, with notes on what each process did; null if none. */
-  explain(src: Uint32Array, srcOff: number, dst: Uint32Array, dstOff: number): TickChoice | null {
+  explain(src: Uint32Array, srcOff: number, dst: Uint32Array, dstOff: number, want?: { stepped: number; receivedFrom: number }): TickChoice | null {
     const { layout, W, cur } = this
     for (let w = 0; w < W; w++) cur[w] = src[srcOff + w]
     const n = layout.n
@@ -195,13 +195,23 @@ export class TickEngine {
           this.counts[b * n + p] = this.poolLen - start
         }
       }
+      // Several combinations may reach the same state (a step that changes nothing, or idling).
+      // When the caller says which processes stepped and which channels delivered (a lasso's
+      // fair edge), the combination that matches is the one told; otherwise the first.
       let found = null as TickChoice | null
       this.forEachCombination(aliveMask, bounds, this.pool, (out, choice, stepped) => {
         for (let w = 0; w < W; w++) if (out[w] !== dst[dstOff + w]) return false
         const ns: (OutcomeNote | null)[] = []
         for (let p = 0; p < n; p++) ns.push(choice.combo[p] >= 0 ? notes[this.starts[choice.bound * n + p] + choice.combo[p]] : null)
-        found = { crashed: choice.crashed, stabilized: choice.stabilized, stepped, notes: ns }
-        return true
+        const candidate = { crashed: choice.crashed, stabilized: choice.stabilized, stepped, notes: ns }
+        if (!want) { found = candidate; return true }
+        let receivedFrom = 0
+        ns.forEach((note, p) => {
+          for (const r of note?.received ?? []) receivedFrom |= 1 << (r.from * (n - 1) + (p < r.from ? p : p - 1))
+        })
+        if (stepped === want.stepped && receivedFrom === want.receivedFrom) { found = candidate; return true }
+        if (!found) found = candidate
+        return false
       })
       return found
     } finally {

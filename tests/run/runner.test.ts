@@ -86,8 +86,11 @@ describe('check semantics', () => {
     expect(cx.message).toMatch(/4/)
     expect(cx.message).toMatch(/0\.\.3/)
     expect(cx.message).toMatch(/line 14/) // the assignment: the fixture starts with a blank line
-    // total reaches 3 after three ticks; the fourth step would write 4.
-    expect(cx.ticks).toHaveLength(3)
+    // total reaches 3 after three ticks; the fourth tick is the failing step, listed last with
+    // the process that stepped and no changes.
+    expect(cx.ticks).toHaveLength(4)
+    expect(cx.ticks[3].changes).toEqual([])
+    expect(cx.ticks[3].stepped).toEqual([1])
     expect(row.complete).toBe(false)
   })
 

@@ -8,7 +8,10 @@ import { join } from 'node:path'
 import { describe, expect, it } from 'vitest'
 import { analyzeNotebook } from '../../kernels/language/analyze'
 import { planRows, runRow } from '../../kernels/run'
+import { generateNotebook, generateProperties } from '../reference/generate'
 import { referenceTemporal } from '../reference/temporal'
+
+const GENERATED = 150
 
 /** Every assignment of distinct 1-based processes to k variables among n. */
 function assignments(n: number, k: number): number[][] {
@@ -96,43 +99,69 @@ describe('reference temporal check', () => {
   })
 })
 
+/** Runs every row of a notebook with the kernel and compares verdicts; returns the rows compared. */
+function compareRows(nb: ReturnType<typeof analyzeNotebook>, label: string): { compared: number; violated: number } {
+  let compared = 0
+  let violated = 0
+  for (const plan of planRows(nb)) {
+    const row = runRow(nb, plan)
+    if (row.processes > 3 || row.processes < 1 || (row.verdict !== 'holds' && row.verdict !== 'violated')) continue
+    if (row.states > 3000) continue
+    const check = nb.checks[plan.check]
+    const prop = check.properties[plan.property]
+    const protocol = nb.protocols[check.protocol]
+    // With the cutoff the kernel checks one assignment (symmetry); without it, all of them.
+    const all = assignments(row.processes, prop.vars.length)
+    const chosen = row.cutoff.applies ? [all[0]] : all
+    let verdict = 'holds'
+    for (const a of chosen) {
+      const r = referenceTemporal(protocol, row.processes, plan.constants, prop, a, 3000, 200_000)
+      if (r.verdict === 'violated') {
+        verdict = 'violated'
+        break
+      }
+      if (r.verdict === 'inconclusive') verdict = 'inconclusive'
+    }
+    if (verdict === 'inconclusive') continue
+    compared++
+    if (verdict === 'violated') violated++
+    const what = `${label} ${prop.name} (${prop.source}) N=${row.processes} ${JSON.stringify(row.constants)}`
+    expect(`${what}: ${row.verdict}`).toBe(`${what}: ${verdict}`)
+  }
+  return { compared, violated }
+}
+
 describe('kernel temporal verdicts against the reference', () => {
   const dir = join(__dirname, '../../notebooks')
   let total = 0
+  let violatedCompared = 0
   for (const f of readdirSync(dir).filter((x) => x.endsWith('.md'))) {
     it(`${f}: every row with at most 3 processes has the reference's verdict`, () => {
-      const nb = analyzeNotebook(readFileSync(join(dir, f), 'utf8'))
-      let compared = 0
-      for (const plan of planRows(nb)) {
-        const row = runRow(nb, plan)
-        if (row.processes > 3 || row.processes < 1 || (row.verdict !== 'holds' && row.verdict !== 'violated')) continue
-        if (row.states > 3000) continue
-        const check = nb.checks[plan.check]
-        const prop = check.properties[plan.property]
-        const protocol = nb.protocols[check.protocol]
-        // With the cutoff the kernel checks one assignment (symmetry); without it, all of them.
-        const all = assignments(row.processes, prop.vars.length)
-        const chosen = row.cutoff.applies ? [all[0]] : all
-        let verdict = 'holds'
-        for (const a of chosen) {
-          const r = referenceTemporal(protocol, row.processes, plan.constants, prop, a, 3000, 200_000)
-          if (r.verdict === 'violated') {
-            verdict = 'violated'
-            break
-          }
-          if (r.verdict === 'inconclusive') verdict = 'inconclusive'
-        }
-        if (verdict === 'inconclusive') continue
-        compared++
-        expect(`${prop.name} N=${row.processes} ${JSON.stringify(row.constants)}: ${row.verdict}`).toBe(
-          `${prop.name} N=${row.processes} ${JSON.stringify(row.constants)}: ${verdict}`,
-        )
-      }
-      total += compared
+      const r = compareRows(analyzeNotebook(readFileSync(join(dir, f), 'utf8')), f)
+      total += r.compared
+      violatedCompared += r.violated
     })
   }
 
-  it('compared some rows of the example notebooks', () => {
+  it('compared some rows of the example notebooks, violations among them', () => {
+    console.log(`temporal rows compared: ${total}, violated among them: ${violatedCompared}`)
     expect(total).toBeGreaterThan(0)
+    expect(violatedCompared).toBeGreaterThan(0)
+  })
+
+  it(`agrees on generated properties of ${GENERATED} generated protocols`, () => {
+    let compared = 0
+    let violated = 0
+    for (let seed = 1; seed <= GENERATED; seed++) {
+      const text = generateNotebook(seed)
+      const protocol = analyzeNotebook(text).protocols[0]
+      const r = compareRows(analyzeNotebook(text + '\n' + generateProperties(protocol, seed)), `seed ${seed}`)
+      compared += r.compared
+      violated += r.violated
+    }
+    console.log(`generated temporal rows compared: ${compared}, violated among them: ${violated}`)
+    expect(compared).toBeGreaterThanOrEqual(GENERATED)
+    expect(violated).toBeGreaterThan(0)
+    expect(violated).toBeLessThan(compared)
   })
 })

@@ -371,3 +371,52 @@ class ProtocolWriter {
     return r.pick(t.labels)
   }
 }
+
+/**
+ * Property and check blocks for a generated protocol (given its typed model), for temporal
+ * differential tests: each temporal operator, `forall p` and `forall p, q`, atoms over scalars,
+ * entries, `alive`, `crashed` and `pending`, with `correct`/`faulty` premises. Checked for
+ * 2 processes (and 1 for the one-variable properties), within `limit` states.
+ */
+export function generateProperties(
+  protocol: { name: string; vars: { name: string; perPeer: boolean; type: { k: string; labels?: string[] } }[]; messages: { name: string }[] },
+  seed: number,
+  limit = 3000,
+): string {
+  const r = new Random(seed * 7919 + 13)
+  const atomOf = (p: string, q: string | null): string => {
+    const choices = protocol.vars.filter((v) => v.perPeer === (q !== null))
+    if (choices.length === 0) return q === null ? `alive(${p})` : `pending(${r.pick(protocol.messages).name}, ${q} -> ${p})`
+    const v = r.pick(choices)
+    const ref = q === null ? `${p}.${v.name}` : `${p}.${v.name}[${q}]`
+    if (v.type.k === 'bool') return r.chance(0.5) ? ref : `not ${ref}`
+    if (v.type.k === 'enum') return `${ref} = ${r.pick(v.type.labels!)}`
+    return `${ref} ${r.pick(['=', '>=', '<'])} ${r.int(0, 1)}`
+  }
+  const one = [
+    `forall p: always eventually (${atomOf('p', null)})`,
+    `forall p: eventually always (${atomOf('p', null)})`,
+    `forall p: always (${atomOf('p', null)})`,
+    `forall p: (${atomOf('p', null)}) unless crashed(p)`,
+  ]
+  const two = [
+    `forall p, q: correct(p) and correct(q) implies always eventually (${atomOf('p', 'q')})`,
+    `forall p, q: faulty(q) implies eventually always (${atomOf('p', 'q')})`,
+    `forall p, q: (${atomOf('p', null)}) until (${atomOf('p', 'q')} or crashed(q))`,
+    `forall p, q: always (pending(${r.pick(protocol.messages).name}, q -> p) implies eventually (${atomOf('p', 'q')} or crashed(p)))`,
+  ]
+  const a = r.pick(one)
+  const b = r.pick(two)
+  return [
+    '```property',
+    `property solo = ${a}`,
+    `property pair = ${b}`,
+    '```',
+    '',
+    '```check',
+    `check ${protocol.name}: solo for 1..2 processes limit ${limit} states`,
+    `check ${protocol.name}: pair for 2 processes limit ${limit} states`,
+    '```',
+    '',
+  ].join('\n')
+}

@@ -230,3 +230,40 @@ describe('model errors', () => {
     expect(r.modelError).toMatch(/division by zero/)
   })
 })
+
+describe('limits', () => {
+  const moorings = `protocol moorings {
+  timing synchronous(delay: 1, idle: 1)
+  state tied[peer]: bool = any
+  step { skip }
+}`
+
+  it('stops as incomplete at the state limit', () => {
+    // 64 initial states (see above) exceed a limit of 10.
+    const r = referenceReachable(protocolOf(moorings), 3, undefined, 10)
+    expect(r.complete).toBe(false)
+    expect(r.states.size).toBe(10)
+  })
+
+  it('stops as incomplete when the tick budget runs out', () => {
+    // Each of the 64 states has one tick; a budget of 20 ticks runs out before all are expanded.
+    const r = referenceReachable(protocolOf(moorings), 3, undefined, 1000, 20)
+    expect(r.complete).toBe(false)
+    const full = referenceReachable(protocolOf(moorings), 3, undefined, 1000, 64)
+    expect(full.complete).toBe(true)
+  })
+
+  it('overrides constants by name or by position', () => {
+    // mark starts at `start`: one state per setting, a fixed point.
+    const p = protocolOf(`protocol weir {
+  const start = 1
+  timing synchronous(delay: 1, idle: 1)
+  state mark: 0..2 = start
+  step { skip }
+}`)
+    const at = (r: ReturnType<typeof referenceReachable>) => [...r.states].map((s) => parsed(s).procs[0].vars.mark)
+    expect(at(referenceReachable(p, 1))).toEqual([1])
+    expect(at(referenceReachable(p, 1, { start: 2 }))).toEqual([2])
+    expect(at(referenceReachable(p, 1, [0]))).toEqual([0])
+  })
+})

@@ -27,6 +27,13 @@ export interface ExploreOptions {
   shouldStop?: () => boolean
   onProgress?: (p: ExploreProgress) => void
   /**
+   * Symmetry reduction: maps every state (initial ones and successors) to the representative of
+   * its orbit before it is stored, so the store holds one state per orbit. The invariant must be
+   * invariant under the same permutations. Traces through representatives are not runs: a caller
+   * that needs a counterexample explores again without reduction.
+   */
+  canonicalize?: (src: Uint32Array, off: number, dst: Uint32Array) => void
+  /**
    * Skip erroring branches and go on (for differential counts); the first error is still reported
    * (outcome 'model-error', with its trace). Default: stop at the first error.
    */
@@ -43,7 +50,7 @@ export interface ExploreResult {
   stopped: boolean
   limitHit: boolean
   outcome: 'ok' | 'violation' | 'model-error'
-  /** Store indices from an initial state to the violating state, or to the state whose step erred. */
+  /** Store indices from an initial state to the violating state, or to the state whose step erred (null under reduction). */
   trace: number[] | null
   error: ModelError | null
   /** The states found; state ids are store indices. */
@@ -114,7 +121,14 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
   let error: ModelError | null = null
   let errorSource = -1
 
-  const init = inst.initialStates()
+  const canon = opts.canonicalize
+  const rep = new Uint32Array(W)
+  let init = inst.initialStates()
+  if (canon) {
+    const reps = new Uint32Array(init.length)
+    for (let off = 0; off < init.length; off += W) { canon(init, off, rep); reps.set(rep, off) }
+    init = reps
+  }
   for (let off = 0; off < init.length && !halted; off += W) {
     if (store.lookup(init, off) >= 0) continue
     if (store.size >= limit) {
@@ -129,7 +143,9 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
   }
 
   const seen = new TargetSet()
-  const emit = (dst: Uint32Array): boolean => {
+  const emit = (succ: Uint32Array): boolean => {
+    let dst = succ
+    if (canon) { canon(succ, 0, rep); dst = rep }
     let idx = store.lookup(dst, 0)
     if (idx < 0) {
       if (store.size >= limit) {
@@ -193,10 +209,10 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
   let trace: number[] | null = null
   if (violation >= 0) {
     outcome = 'violation'
-    trace = traceTo(inst, store, levelStart, violation)
+    trace = canon ? null : traceTo(inst, store, levelStart, violation)
   } else if (error) {
     outcome = 'model-error'
-    trace = traceTo(inst, store, levelStart, errorSource)
+    trace = canon ? null : traceTo(inst, store, levelStart, errorSource)
   }
   const seconds = (performance.now() - t0) / 1000
   return {

@@ -1,0 +1,43 @@
+// `npm run bench [-- --json]`: speed and memory of the kernel, each measured against an
+// in-process baseline in the same run (so that the numbers compare on any machine).
+import { exploreCases, hashBaseline } from './explore'
+import { parseCases } from './parse'
+import { productCases } from './product'
+
+const json = process.argv.includes('--json')
+const root = new URL('../', import.meta.url)
+
+const parse = parseCases()
+const baseline = hashBaseline()
+const cases = exploreCases()
+const product = productCases(root)
+
+const transitionsPerSecond = (c: { transitions: number; seconds: number }) => c.transitions / c.seconds
+const best = Math.max(...cases.map(transitionsPerSecond))
+const report = {
+  cases,
+  baseline,
+  ratio: { transitionsPerSecondOverInsertsPerSecond: best / baseline.insertsPerSecond },
+  parse,
+  product,
+}
+
+if (json) {
+  process.stdout.write(JSON.stringify(report, null, 2) + '\n')
+} else {
+  const f = (x: number) => (x >= 100 ? Math.round(x).toLocaleString('en-US') : x.toFixed(2))
+  console.log('Exploration (distinct transitions per second, bytes per stored state)')
+  for (const c of cases) {
+    console.log(`  ${c.name.padEnd(48)} N=${c.processes}  ${f(c.states).padStart(10)} states  ${f(c.transitions).padStart(11)} transitions  ${c.seconds.toFixed(2)} s  ${f(transitionsPerSecond(c)).padStart(11)}/s  ${c.bytesPerState.toFixed(1)} B/state`)
+  }
+  console.log(`  baseline: ${baseline.name}: ${f(baseline.insertsPerSecond)} inserts/s (${baseline.keyWords} words per key)`)
+  console.log(`  best ratio transitions/s : inserts/s = ${report.ratio.transitionsPerSecondOverInsertsPerSecond.toFixed(3)} (target >= 0.5)`)
+  console.log('Temporal product (product states per second, against plain exploration)')
+  for (const p of product) {
+    console.log(`  ${p.name.padEnd(48)} N=${p.processes}  ${f(p.states).padStart(9)} states ${f(p.statesPerSecond).padStart(10)}/s   ${f(p.productStates).padStart(9)} product states ${f(p.productStatesPerSecond).padStart(10)}/s  holds=${p.holds}`)
+  }
+  const pc = parse.cases[0]
+  console.log('Parse and check')
+  console.log(`  ${pc.name}: ${pc.lines} lines in ${pc.seconds.toFixed(3)} s = ${f(pc.linesPerSecond)} lines/s (${pc.diagnostics} diagnostics)`)
+  console.log(`  baseline: ${parse.baseline.name}: ${f(parse.baseline.linesPerSecond)} lines/s`)
+}

@@ -63,18 +63,3 @@ export function evalConstant(e: Expr, constants: readonly number[]): number {
   }
   throw new ConstantError('not a constant expression')
 }
-
-/** The values of a type under given constants, as [lo, hi] (bool is [0, 1], an enum [0, n-1]). */
-export function typeBounds(t: Type, constants: readonly number[]): [number, number] {
-  if (t.k === 'bool') return [0, 1]
-  if (t.k === 'enum') return [0, t.labels.length - 1]
-  return [evalConstant(t.lo, constants), evalConstant(t.hi, constants)]
-}
-
-/** How a type is written in the notebook, with bounds evaluated. */
-export function typeText(t: Type, constants: readonly number[]): string {
-  if (t.k === 'bool') return 'bool'
-  if (t.k === 'enum') return `{${t.labels.join(', ')}}`
-  const [lo, hi] = typeBounds(t, constants)
-  return `${lo}..${hi}`
-}

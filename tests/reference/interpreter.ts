@@ -612,6 +612,22 @@ function constantValues(p: ProtocolModel, constants?: number[] | Record<string, 
   return p.consts.map((c) => (constants && c.name in constants ? constants[c.name] : c.value))
 }
 
+/** The instance a reference exploration works on: constants, bounds and timing evaluated once. */
+function makeInstance(protocol: ProtocolModel, n: number, constants?: number[] | Record<string, number>): Instance {
+  const consts = constantValues(protocol, constants)
+  const t = protocol.timing
+  return {
+    p: protocol,
+    n,
+    consts,
+    timing: t.kind,
+    delay: t.kind === 'asynchronous' ? 0 : constExpr(t.delay, consts),
+    idle: t.kind === 'asynchronous' ? 0 : constExpr(t.idle, consts),
+    varBounds: protocol.vars.map((v) => typeBounds(v.type, consts)),
+    fieldBounds: protocol.messages.map((m) => m.fields.map((f) => typeBounds(f.type, consts))),
+  }
+}
+
 /**
  * Explores G_n of `protocol` breadth-first and returns its reachable canonical states, the number
  * of distinct (source, target) pairs, whether it finished within `limit` states, and the first
@@ -626,18 +642,7 @@ export function referenceReachable(
   limit = 1_000_000,
   budget = Infinity,
 ): ReferenceResult {
-  const consts = constantValues(protocol, constants)
-  const t = protocol.timing
-  const inst: Instance = {
-    p: protocol,
-    n,
-    consts,
-    timing: t.kind,
-    delay: t.kind === 'asynchronous' ? 0 : constExpr(t.delay, consts),
-    idle: t.kind === 'asynchronous' ? 0 : constExpr(t.idle, consts),
-    varBounds: protocol.vars.map((v) => typeBounds(v.type, consts)),
-    fieldBounds: protocol.messages.map((m) => m.fields.map((f) => typeBounds(f.type, consts))),
-  }
+  const inst = makeInstance(protocol, n, constants)
   const errors: string[] = []
   const states = new Set<string>()
   const byKey = new Map<string, Global>()
@@ -719,18 +724,8 @@ export function referenceGraph(
   limit = 1_000_000,
   budget = Infinity,
 ): ReferenceGraph {
-  const consts = constantValues(protocol, constants)
-  const t = protocol.timing
-  const inst: Instance = {
-    p: protocol,
-    n,
-    consts,
-    timing: t.kind,
-    delay: t.kind === 'asynchronous' ? 0 : constExpr(t.delay, consts),
-    idle: t.kind === 'asynchronous' ? 0 : constExpr(t.idle, consts),
-    varBounds: protocol.vars.map((v) => typeBounds(v.type, consts)),
-    fieldBounds: protocol.messages.map((m) => m.fields.map((f) => typeBounds(f.type, consts))),
-  }
+  const inst = makeInstance(protocol, n, constants)
+  const consts = inst.consts
   const out: ReferenceGraph = { keys: [], states: [], initial: [], edges: [], complete: true, modelError: null, constants: consts }
   const index = new Map<string, number>()
   const errors: string[] = []

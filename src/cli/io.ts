@@ -1,10 +1,11 @@
 // What a command may touch: two output streams, the working directory, and the kernel. Tests pass
 // their own, so they run the command line in-process and read what it printed.
-import { readFile, writeFile } from 'node:fs/promises'
+import { readFile } from 'node:fs/promises'
 import { resolve } from 'node:path'
 import type { RecordKernel } from '../../kernels/record/kernel'
 import type { VerificationRecord } from '../../kernels/record/record'
 import { RecordError, parseRecord } from '../../kernels/record/replay'
+import { writeFileAtomic } from './atomic'
 
 /** The command line's world. Everything printed goes through `stdout` and `stderr`. */
 export interface CliIo {
@@ -45,10 +46,13 @@ export async function readInput(io: CliIo, path: string, what: string, code: num
   }
 }
 
-/** Writes a file named on the command line; a failed write is a `CliFailure` with `code`. */
+/**
+ * Writes a file named on the command line atomically (atomic.ts); a failed write is a `CliFailure`
+ * with `code` and leaves any previous file in place.
+ */
 export async function writeOutput(io: CliIo, path: string, text: string, what: string, code: number): Promise<void> {
   try {
-    await writeFile(resolve(io.cwd, path), text, 'utf8')
+    await writeFileAtomic(resolve(io.cwd, path), text)
   } catch (e) {
     throw new CliFailure(`cannot write ${what} ${path}: ${describe(e)}`, code)
   }

@@ -3,30 +3,27 @@
 import { canonicalJsonPretty } from '../../kernels/record/canonical'
 import type { RecordKernel } from '../../kernels/record/kernel'
 import { buildRecord } from '../../kernels/record/record'
-import { ShardError, parseShard, type Shard } from '../../kernels/record/shard'
+import type { RunOptions } from '../../kernels/api'
+import { resolveCheckOptions, type OutputFlags } from './check-options'
 import { REFUSED, checkExitCode } from './exit'
-import { CliFailure, readInput, writeOutput, type CliIo } from './io'
+import { CliFailure, STDIN_NAME, readInput, readStdin, writeOutput, type CliIo } from './io'
 import { progressLine } from './progress'
-import { diagnosticLine, renderReport } from './table'
+import { emitReport } from './report-output'
 
 /** The options of `twofold check`, as commander parses them. */
-export interface CheckFlags {
-  json?: boolean
+export interface CheckFlags extends OutputFlags {
   record?: string
   only?: string
-  shard?: string
 }
 
 /** Runs `twofold check` and returns its exit code. The kernel is loaded only once the inputs are known to be usable. */
-export async function runCheck(io: CliIo, loadKernel: () => Promise<RecordKernel>, path: string, flags: CheckFlags): Promise<number> {
-  let shard: Shard | undefined
-  try {
-    shard = flags.shard === undefined ? undefined : parseShard(flags.shard)
-  } catch (e) {
-    if (e instanceof ShardError) throw new CliFailure(e.message, REFUSED)
-    throw e
-  }
-  const text = await readInput(io, path, 'notebook', REFUSED)
+export async function runCheck(io: CliIo, loadKernel: () => Promise<RecordKernel>, given: string, flags: CheckFlags): Promise<number> {
+  // `-` reads the notebook from standard input; reports and records then name it STDIN_NAME.
+  const fromStdin = given === '-'
+  const options = resolveCheckOptions(io, fromStdin ? undefined : given, flags)
+  const { shard } = options
+  const path = fromStdin ? STDIN_NAME : given
+  const text = fromStdin ? await readStdin(io, REFUSED) : await readInput(io, path, 'notebook', REFUSED)
   const kernel = await loadKernel()
   const model = await kernel.analyzeNotebook(text)
   const hasErrors = model.diagnostics.some((d) => d.severity === 'error')
@@ -37,10 +34,12 @@ export async function runCheck(io: CliIo, loadKernel: () => Promise<RecordKernel
     if (!named) throw new CliFailure(`--only ${flags.only}: no check in ${path} names that protocol or property`, REFUSED)
   }
 
-  const progress = progressLine(io)
+  const progress = progressLine(options.quiet ? { ...io, stderrIsTTY: false } : io)
+  // `workers` reaches the kernel as it grows parallel exploration; until then it is ignored there.
+  const run: RunOptions & { workers?: number } = { only: flags.only, shard, workers: options.workers, onProgress: (p) => progress.report(p) }
   let report
   try {
-    report = await kernel.runNotebook(text, path, { only: flags.only, shard, onProgress: (p) => progress.report(p) })
+    report = await kernel.runNotebook(text, path, run)
   } finally {
     progress.clear()
   }
@@ -50,14 +49,7 @@ export async function runCheck(io: CliIo, loadKernel: () => Promise<RecordKernel
     await writeOutput(io, flags.record, canonicalJsonPretty(record) + '\n', 'record', REFUSED)
   }
 
-  if (flags.json) {
-    io.stdout(JSON.stringify(report, null, 2) + '\n')
-  } else {
-    for (const e of report.errors) io.stderr(diagnosticLine(path, e.line, e.column, e.message) + '\n')
-    for (const d of model.diagnostics)
-      if (d.severity === 'warning') io.stderr(diagnosticLine(path, d.line, d.column, `warning: ${d.message}`) + '\n')
-    io.stdout(renderReport(report))
-    if (flags.record !== undefined) io.stdout(`record written to ${flags.record}\n`)
-  }
-  return checkExitCode(report)
+  const code = checkExitCode(report)
+  await emitReport(io, options, report, model, code, flags.record)
+  return code
 }

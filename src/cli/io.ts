@@ -1,11 +1,13 @@
-// What a command may touch: two output streams, the working directory, and the kernel. Tests pass
-// their own, so they run the command line in-process and read what it printed.
+// What a command may touch: standard input and two output streams, the environment, the working
+// directory, and the kernel. Tests pass their own, so they run the command line in-process and
+// read what it printed.
 import { readFile } from 'node:fs/promises'
 import { resolve } from 'node:path'
 import type { RecordKernel } from '../../kernels/record/kernel'
 import type { VerificationRecord } from '../../kernels/record/record'
 import { RecordError, parseRecord } from '../../kernels/record/replay'
 import { writeFileAtomic } from './atomic'
+import type { Environment } from './scheduler'
 
 /** The command line's world. Everything printed goes through `stdout` and `stderr`. */
 export interface CliIo {
@@ -17,6 +19,31 @@ export interface CliIo {
   cwd: string
   /** The kernel to run; the real one (kernels/api.ts) when omitted. */
   kernel?: RecordKernel
+  /** Environment variables (`--shard auto`, NO_COLOR); the process's when omitted. */
+  env?: Environment
+  /** Standard input, read whole by `twofold check -`; the process's when omitted. */
+  stdin?: AsyncIterable<string | Uint8Array> | Iterable<string | Uint8Array>
+  /** Whether stdout is a terminal: the table is coloured only then, unless `--color` says otherwise. */
+  stdoutIsTTY?: boolean
+}
+
+/** The name a notebook read from standard input goes by in reports, records and messages. */
+export const STDIN_NAME = '<stdin>'
+
+/** The environment a command sees: `io.env`, else the process's. */
+export function environment(io: CliIo): Environment {
+  return io.env ?? process.env
+}
+
+/** Reads standard input whole as UTF-8 text (`twofold check -`); a failed read is a `CliFailure` with `code`. */
+export async function readStdin(io: CliIo, code: number): Promise<string> {
+  const chunks: Buffer[] = []
+  try {
+    for await (const chunk of io.stdin ?? process.stdin) chunks.push(typeof chunk === 'string' ? Buffer.from(chunk, 'utf8') : Buffer.from(chunk))
+  } catch (e) {
+    throw new CliFailure(`cannot read the notebook from standard input: ${describe(e)}`, code)
+  }
+  return Buffer.concat(chunks).toString('utf8')
 }
 
 /** The process's own streams and directory. */
@@ -25,7 +52,10 @@ export function processIo(): CliIo {
     stdout: (text) => void process.stdout.write(text),
     stderr: (text) => void process.stderr.write(text),
     stderrIsTTY: Boolean(process.stderr.isTTY),
+    stdoutIsTTY: Boolean(process.stdout.isTTY),
     cwd: process.cwd(),
+    env: process.env,
+    stdin: process.stdin,
   }
 }
 

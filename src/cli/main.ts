@@ -32,11 +32,18 @@ export async function main(argv: string[], io: CliIo): Promise<number> {
   program
     .command('check')
     .description('run every check block of a notebook and print the verdicts')
-    .argument('<notebook>', 'the notebook (.md) to check')
-    .option('--json', 'print the JSON report (records.md) on stdout instead of the table')
+    .argument('<notebook>', 'the notebook (.md) to check; - reads it from standard input')
+    .option('--json', 'print the JSON report (records.md) on stdout instead of the table (short for --format json)')
+    .option('--format <format>', 'the report: table (default), json, junit (JUnit XML) or sarif (SARIF 2.1.0)')
+    .option('--output <file>', 'write the report to <file> (atomically) and show the table on stdout')
     .option('--record <file>', 'also write a verification record to <file>')
     .option('--only <name>', 'run only the checks that name this property or protocol')
-    .option('--shard <I/N>', 'run only rows whose plan index is I-1 modulo N (for CI matrices; join with merge)')
+    .option('--shard <I/N|auto>', 'run only rows whose plan index is I-1 modulo N (join with merge); auto reads I/N from a Kubernetes Indexed Job, a Slurm job array or CI_NODE_INDEX/CI_NODE_TOTAL')
+    .option('--shards <N>', 'with --shard auto: the shard count (required on Kubernetes, else checked against the environment)')
+    .option('--workers <N>', 'parallel workers for exploration, 1 to 256')
+    .option('--color [when]', 'colour the table: always (the default for a bare --color), never or auto (a terminal and NO_COLOR unset)')
+    .option('--no-color', 'never colour the table')
+    .option('-q, --quiet', 'print nothing: only the exit code answers')
     .addHelpText(
       'after',
       '\nExit codes: 0 every check holds; 1 some check is violated; 2 the notebook has errors (nothing\n' +

@@ -1,7 +1,7 @@
 // The readable form of a report: one table row per checked row, then what a reader needs below it:
 // counterexamples tick by tick in a compact form, the reasons a cutoff was refused, notes, and the
 // cutoff statements the verdicts stand for.
-import type { CheckRow, Counterexample, Report, ShownValue, TickRecord } from '../../kernels/result'
+import type { CheckRow, Counterexample, Report, ShownValue, TickRecord, Verdict } from '../../kernels/result'
 
 /** `file:line:column: message`, the form editors and CI logs link from. */
 export function diagnosticLine(path: string, line: number, column: number, message: string): string {
@@ -10,6 +10,7 @@ export function diagnosticLine(path: string, line: number, column: number, messa
 
 const HEADER = ['property', 'instance', 'constants', 'verdict', 'states', 'transitions', 'time']
 const NUMERIC = new Set([4, 5, 6])
+const VERDICT = 3
 
 /** The instance a row was checked on, e.g. `G_2 (cutoff)` when the cutoff picked the size. */
 export function instanceLabel(row: CheckRow): string {
@@ -27,8 +28,13 @@ function count(n: number, complete: boolean): string {
   return n.toLocaleString('en-US') + (complete ? '' : '+')
 }
 
+/** How the table is drawn: `paint` wraps a padded verdict cell (colour), when given. */
+export interface RenderOptions {
+  paint?: (verdict: Verdict, cell: string) => string
+}
+
 /** The table and details for a report, as printed by `twofold check`. Ends with a newline. */
-export function renderReport(report: Report): string {
+export function renderReport(report: Report, options: RenderOptions = {}): string {
   const path = report.notebook.path
   const out: string[] = []
   if (report.checks.length === 0) {
@@ -48,11 +54,18 @@ export function renderReport(report: Report): string {
     `${row.seconds.toFixed(2)} s`,
   ])
   const widths = HEADER.map((h, c) => Math.max(h.length, ...cells.map((r) => r[c].length)))
-  const line = (r: string[]) =>
-    r.map((cell, c) => (NUMERIC.has(c) ? cell.padStart(widths[c]) : cell.padEnd(widths[c]))).join('  ').trimEnd()
+  // Colour is added after padding, so escape codes never count towards a column's width.
+  const line = (r: string[], verdict?: Verdict) =>
+    r
+      .map((cell, c) => {
+        const padded = NUMERIC.has(c) ? cell.padStart(widths[c]) : cell.padEnd(widths[c])
+        return c === VERDICT && verdict && options.paint ? options.paint(verdict, cell) + padded.slice(cell.length) : padded
+      })
+      .join('  ')
+      .trimEnd()
   out.push(line(HEADER))
   out.push(line(widths.map((w) => '-'.repeat(w))))
-  for (const r of cells) out.push(line(r))
+  cells.forEach((r, i) => out.push(line(r, report.checks[i].verdict)))
 
   const details: string[] = []
   for (const row of report.checks) {

@@ -7,16 +7,29 @@ import { main } from '../../src/cli/main'
 
 export interface Ran { code: number; stdout: string; stderr: string }
 
+/** What a test sets around a run: a scripted kernel, terminals, the environment (empty unless given) and standard input. */
+export interface RunOptions {
+  kernel?: RecordKernel
+  tty?: boolean
+  stdoutTTY?: boolean
+  env?: Record<string, string>
+  stdin?: string
+}
+
 /** Runs `twofold ...argv` in `cwd`; `kernel` replaces the real kernel when given. */
-export async function twofold(argv: string[], cwd: string, options: { kernel?: RecordKernel; tty?: boolean } = {}): Promise<Ran> {
+export async function twofold(argv: string[], cwd: string, options: RunOptions = {}): Promise<Ran> {
   let stdout = ''
   let stderr = ''
   const code = await main(argv, {
     stdout: (s) => void (stdout += s),
     stderr: (s) => void (stderr += s),
     stderrIsTTY: options.tty ?? false,
+    stdoutIsTTY: options.stdoutTTY ?? false,
     cwd,
     kernel: options.kernel,
+    // The process's own environment may hold CI variables; a run sees only what the test sets.
+    env: options.env ?? {},
+    stdin: [options.stdin ?? ''],
   })
   return { code, stdout, stderr }
 }

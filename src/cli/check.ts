@@ -1,4 +1,4 @@
-// `twofold check NOTEBOOK.md`: run every check of a notebook, print the table (or the JSON report),
+// `twofold check NOTEBOOK.md`: run every check of a notebook, print the report (table, JSON, JUnit or SARIF),
 // optionally write a verification record, and answer with the exit code CI acts on.
 import { canonicalJsonPretty } from '../../kernels/record/canonical'
 import type { RecordKernel } from '../../kernels/record/kernel'

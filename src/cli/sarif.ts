@@ -58,8 +58,8 @@ function rowResult(row: CheckRow, model: NotebookModel, uri: string): Sarif.Resu
   const check = model.checks[row.check]
   const property = check?.properties.find((p) => p.name === row.property)
   const declared = model.properties.find((p) => p.name === row.property)
-  const propertyRegion = region(property?.span ?? declared?.span, property?.block.line ?? declared?.block.line)
-  const checkRegion = region(check?.span, check?.block.line)
+  const propertyRegion = region(property?.span ?? declared?.span, property?.block?.line ?? declared?.block?.line)
+  const checkRegion = region(check?.span, check?.block?.line)
   const reasons = row.cutoff.applies ? [] : row.cutoff.reasons
   const constants = Object.entries(row.constants).map(([n, v]) => `${n}=${v}`).join(' ')
   return {

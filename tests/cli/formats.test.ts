@@ -10,7 +10,8 @@ import { validateXML } from 'xmllint-wasm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Report } from '../../kernels/result'
 import { junitReport } from '../../src/cli/junit'
-import { report, row } from '../record/synthetic'
+import { sarifReport } from '../../src/cli/sarif'
+import { harbourModel, report, row } from '../record/synthetic'
 import { twofold, workspace } from './harness'
 
 const xsd = readFileSync(new URL('./junit.xsd', import.meta.url), 'utf8')
@@ -164,6 +165,18 @@ describe('--format sarif', () => {
     const json = await jsonReport('broken.md')
     const { log } = await sarif('broken.md')
     expect(log.runs[0].results!.map((r) => [r.ruleId, r.locations![0].physicalLocation!.region!.startLine])).toEqual(json.errors.map((e) => ['notebook-error', e.line]))
+  })
+
+  it('gives a row that could not be run level error, at the blocks\' lines when the model has no spans', () => {
+    const r = report((i) => i >= 6)
+    r.checks[0] = row(6, { verdict: 'error', note: 'the instance has too many processes' })
+    const log = sarifReport(r, harbourModel, '0.1.0', 3)
+    expect(validateSarif(log) ? [] : validateSarif.errors).toEqual([])
+    const [result] = log.runs[0].results!
+    expect([result.ruleId, result.level, result.message.text]).toEqual(['error', 'error', 'check 1 cranes: calm on G_2 (cutoff) with reach=3: error: the instance has too many processes'])
+    // Oracle: the synthetic model's property block starts at line 14 and its check block at 19.
+    expect(result.locations!.map((l) => l.physicalLocation!.region)).toEqual([{ startLine: 14 }, { startLine: 19 }])
+    expect(log.runs[0].artifacts![0].location!.uri).toBe('notebooks/harbour.md')
   })
 
   it('the schema refuses a log a code host could not read (the validator can fail)', async () => {

@@ -15,7 +15,7 @@ export interface MessageEvent { from: number; to: number; message: string }
 export interface TickRecord {
   tick: number
   crashed: number[]
-  /** stabilizing only: true in the tick that set `stable`. */
+  /** eventually synchronous only: true in the tick that set `stable` (GST: the bounds hold from then on). */
   stabilized?: boolean
   stepped: number[]
   received: MessageEvent[]
@@ -65,7 +65,7 @@ export interface CheckRow {
   property: string
   processes: number
   constants: Record<string, number>
-  timing: 'synchronous' | 'stabilizing' | 'asynchronous'
+  timing: 'synchronous' | 'eventually synchronous' | 'asynchronous'
   verdict: Verdict
   states: number
   transitions: number

@@ -146,7 +146,7 @@ export interface FairGraph {
 /**
  * Fairness sets (semantics.md) as transition marks: bit i, process i steps or is crashed; then one
  * bit per channel j->i: i is crashed, or the channel is empty at the source, or i receives from it
- * in the tick; last, under stabilizing, the edge ends in a stable state.
+ * in the tick; last, under eventually synchronous, the edge ends in a stable state.
  */
 export interface FairMarks {
   fairnessSets: number
@@ -166,7 +166,7 @@ export function fairMarks(inst: Instance): FairMarks {
       if (i !== j) channels.push({ i, bit: n + channels.length, index: j * (n - 1) + (i < j ? i : i - 1), test: channelEmpty(inst, j, i) })
     }
   }
-  const stab = inst.protocol.timing.kind === 'stabilizing' ? isStable(inst) : null
+  const stab = inst.protocol.timing.kind === 'eventually synchronous' ? isStable(inst) : null
   const fairnessSets = n + channels.length + (stab ? 1 : 0)
   return {
     fairnessSets,

@@ -47,7 +47,7 @@ export function decideCutoff(protocol: ProtocolModel, property: PropertyModel): 
     return {
       applies: false,
       processes: null,
-      statement: `${ruleList(rules)}; give explicit sizes, as in \`for 2..3 processes\``,
+      statement: `${ruleList(rules)}; give explicit sizes, as in \`at N = 2..3\``,
       tex: '',
       passed: [],
       reasons: check.reasons,

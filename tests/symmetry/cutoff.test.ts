@@ -44,7 +44,7 @@ describe('decideCutoff', () => {
     expect(info.tex).toBe('')
     expect(info.passed).toEqual([])
     expect(info.reasons.map((r) => r.rule)).toEqual([3, 5])
-    expect(info.statement).toBe('rules 3 and 5 fail; give explicit sizes, as in `for 2..3 processes`')
+    expect(info.statement).toBe('rules 3 and 5 fail; give explicit sizes, as in `at N = 2..3`')
   })
   it('produces TeX that KaTeX typesets without errors', () => {
     for (const p of c.properties) {

@@ -37,8 +37,8 @@ export interface Counterexample {
   atoms?: { text: string; values: boolean[] }[]
 }
 
-/** One failed class-check rule (cutoff.md). */
-export interface Reason { rule: number; line: number; column: number; message: string }
+/** One failed class-check rule (cutoff.md): its number and its short name, such as `no-aggregate`. */
+export interface Reason { rule: number; name: string; line: number; column: number; message: string }
 
 export interface CutoffInfo {
   applies: boolean

@@ -15,10 +15,11 @@ import { compileInstance, type Instance } from './model/instance'
 import { channelEmpty, compileTerm, isCrashed, isStable, type StateTerm } from './model/observe'
 import { canonicalizer, freePermutations, permuteState } from './symmetry/canon'
 import { decideCutoff } from './symmetry/cutoff'
+import { RULE_NAMES } from './symmetry/rules'
 import { sha256Hex } from './record/hash'
 import type { CheckRow, CutoffInfo, Report } from './result'
 
-/** States explored before a check without `limit` gives up as inconclusive (memory guard). */
+/** States explored before a check without `within K states` gives up as inconclusive (memory guard). */
 export const DEFAULT_LIMIT = 4_000_000
 
 /** Every constant setting of a check: the cartesian product of its sweep, in sweep order. */
@@ -321,7 +322,7 @@ export function runRow(model: NotebookModel, plan: RowPlan, opts: RunOptions = {
   try {
     cutoff = decideCutoff(protocol, prop)
   } catch (e) {
-    cutoff = { ...emptyCutoff(), reasons: [{ rule: 0, line: prop.span.line, column: prop.span.column, message: `the class check failed internally (${(e as Error).message})` }] }
+    cutoff = { ...emptyCutoff(), reasons: [{ rule: 0, name: RULE_NAMES[0], line: prop.span.line, column: prop.span.column, message: `the class check failed internally (${(e as Error).message})` }] }
   }
   const row: CheckRow = {
     row: plan.row, check: plan.check, protocol: protocol.name, property: prop.name,
@@ -331,7 +332,11 @@ export function runRow(model: NotebookModel, plan: RowPlan, opts: RunOptions = {
   }
   const finish = (): CheckRow => { row.seconds = (performance.now() - t0) / 1000; return row }
   if (plan.processes === null && !cutoff.applies) {
-    row.note = 'the cutoff does not apply to this protocol and property (see the reasons); give explicit sizes with `for N processes`'
+    row.note = 'the cutoff does not apply to this protocol and property (see the reasons); give explicit sizes with `at N = K`'
+    return finish()
+  }
+  if (check.method === 'induction') {
+    row.note = 'proof by induction (`by induction`) is not available in this build, so nothing was proved; check the property without `by induction` to explore it'
     return finish()
   }
   const n = row.processes
@@ -381,7 +386,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
       row.states = orbitTotal(inst, rr, fixed)
       row.transitions = rr.transitions
       if (!rr.complete) {
-        row.note = rr.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`limit K states\``
+        row.note = rr.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`within K states\``
         return row
       }
       row.verdict = 'holds'
@@ -418,7 +423,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
     return row
   }
   if (!r.complete) {
-    row.note = r.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`limit K states\``
+    row.note = r.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`within K states\``
     return row
   }
   if (inv) {

@@ -4,6 +4,7 @@
 // with the automaton of their negation under the fairness of semantics.md.
 import type { RowPlan, RunOptions } from './api'
 import { analyzeNotebook } from './language/analyze'
+import { instantiatedText } from './language/instantiate'
 import type { CheckModel, Formula, NotebookModel, PropertyModel, ProtocolModel, Term } from './language/model'
 import { explore, type ExploreResult } from './explore/reach'
 import { modelErrorCounterexample, traceCounterexample } from './explore/trace'
@@ -118,7 +119,7 @@ function atomBands(inst: Instance, data: Uint32Array, path: number[], prop: Prop
   const W = inst.words
   return terms.map((t) => {
     const f = compileTerm(inst, t, a)
-    return { text: sourceOf(prop, t.span), values: path.map((s) => f(data, s * W) !== 0) }
+    return { text: instantiatedText(prop, t, t.span, a), values: path.map((s) => f(data, s * W) !== 0) }
   })
 }
 

@@ -107,8 +107,30 @@ describe('check semantics', () => {
     const cx = row.counterexample!
     expect(cx.kind).toBe('lasso')
     expect(cx.loopStart).toBeDefined()
-    expect(cx.atoms![0].text).toBe('p.lit')
+    expect(cx.atoms![0].text).toBe('#1.lit')
     expect(cx.atoms![0].values).toHaveLength(cx.ticks.length + 1)
+  })
+
+  test('counterexample atoms read as written, with the processes of the assignment filled in', () => {
+    const prop = '```property\nproperty early = forall p, q: always (correct(q) implies p.seen[q] <= 1)\n```\n'
+    const [granted] = run(lamps('    broadcast blink', prop + '```check\ncheck lamps: early\n```'))
+    expect(granted.verdict).toBe('violated')
+    expect(granted.assignment).toEqual({ p: 1, q: 2 })
+    expect(granted.counterexample!.atoms!.map((a) => a.text)).toEqual(['correct(#2)', '#1.seen[#2] <= 1'])
+    // Refused cutoff (an aggregate feeds a broadcast): every assignment is tried, and the atoms name
+    // the one that failed, whichever it is.
+    const [refused] = run(lamps('    total := count q: seen[q] > 0\n    if total >= 0 { broadcast blink }', prop + '```check\ncheck lamps: early at N = 3\n```'))
+    expect(refused.cutoff.applies).toBe(false)
+    expect(refused.verdict).toBe('violated')
+    const { p, q } = refused.assignment
+    expect(refused.counterexample!.atoms!.map((a) => a.text)).toEqual([`correct(#${q})`, `#${p}.seen[#${q}] <= 1`])
+  })
+
+  test('a check by induction is inconclusive in this build and says so, proving nothing', () => {
+    const [row] = run(lamps('    broadcast blink', '```property\nproperty capped = forall p, q: always p.seen[q] <= cap\n```\n```check\ncheck lamps: capped at N = 2 by induction\n```'))
+    expect(row.verdict).toBe('inconclusive')
+    expect(row.note).toMatch(/induction.*not available/)
+    expect(row.states).toBe(0)
   })
 
   test('a notebook with errors checks nothing and reports each error with its position', async () => {

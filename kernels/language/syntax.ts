@@ -176,7 +176,8 @@ export function reportSyntaxErrors(tree: Tree, ctx: BlockContext): number {
       if (node.from === node.to) {
         const next = firstToken(text.slice(node.from))
         const at = next ? `before \`${next}\`` : 'at the end of the block'
-        const start = text.slice(node.from).search(/\S|$/) + node.from
+        // At the end of the block, the place is right after the last word (not the closing fence).
+        const start = next ? text.slice(node.from).search(/\S|$/) + node.from : text.slice(0, node.from).trimEnd().length
         ctx.error({ from: start, to: start + Math.max(next.length, 0) }, `the ${thing} is incomplete ${at}; ${expect}`)
       } else {
         const token = firstToken(text.slice(node.from, node.to)) || text.slice(node.from, node.to).trim()

@@ -212,9 +212,10 @@ export function protocolProblems(protocol: ProtocolModel, constants: readonly nu
     } else constantValue(v.init, constants, `the initial value of \`${v.name}\``, out)
   })
   const fieldRanges = protocol.messages.map((m) => {
+    const before = out.length
     const ranges = m.fields.map((f) => typeRange(f.type, constants, `field \`${f.name}\` of \`${m.name}\``, f.span, out))
     const count = ranges.reduce((n, r) => n * (r[1] - r[0] + 1), 1)
-    if (count > MAX_MESSAGE_VALUES) {
+    if (count > MAX_MESSAGE_VALUES && out.length === before) {
       out.push({ span: m.span, message: `message \`${m.name}\` has ${count} values, more than the ${MAX_MESSAGE_VALUES} a channel can track; narrow its field types` })
     }
     return ranges

@@ -93,7 +93,7 @@ export function compileInstance(protocol: ProtocolModel, n: number, constants: n
       if (total > MAX_INITIAL_STATES) {
         // Each `any` multiplies the initial states per process and per peer entry.
         const first = protocol.vars.find((d) => d.init === 'any')!
-        throw new ModelSetupError(`the \`any\` initial values give ${total} initial states for ${n} processes, more than the ${MAX_INITIAL_STATES} an exploration may start from (\`${first.name}\`, line ${first.span.line}, column ${first.span.column}); give fixed initial values or narrower types`, first.span)
+        throw new ModelSetupError(`the \`any\` initial values give ${Number.isSafeInteger(total) ? total : `about ${total.toPrecision(3)}`} initial states for ${n} processes, more than the ${MAX_INITIAL_STATES} an exploration may start from (\`${first.name}\`, line ${first.span.line}, column ${first.span.column}); give fixed initial values or narrower types`, first.span)
       }
       const out = new Uint32Array(total * words)
       const one = new Uint32Array(words)

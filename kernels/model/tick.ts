@@ -83,6 +83,8 @@ export class TickEngine {
   private bound: ExpansionBound | null = null
   /** Set when an outcome list of this expansion was cut short (not memoized, pool to be reset). */
   private cut = false
+  /** Whether the last `generate` cut its list (a field, not a returned object: no allocation per state). */
+  private lastCut = false
   private readonly choice = { crashed: 0, stabilized: false, bound: 0, combo: new Int32Array(0) as Int32Array }
   private emit: ((dst: Uint32Array, stepped: number, receivedFrom: number) => unknown) | null = null
   /** Made once: passing a fresh closure per state would allocate in the hot loop. */
@@ -279,7 +281,8 @@ export class TickEngine {
       return this.memoError.get(known) ?? null
     }
     const start = this.poolLen
-    const { error: err, cut } = this.generate(p, b, cap)
+    const err = this.generate(p, b, cap)
+    const cut = this.lastCut
     this.starts[slot] = start
     this.counts[slot] = this.poolLen - start
     if (cut || this.bound?.interrupted) {
@@ -303,10 +306,10 @@ export class TickEngine {
 
   /**
    * Appends the distinct outcomes of alive process p in the current state, under the bound when
-   * b = 1, to the pool (with notes in record mode). Returns the first model error met, and whether
-   * the list was cut at `cap` distinct outcomes (or abandoned because the expansion's stop said so).
+   * b = 1, to the pool (with notes in record mode). Returns the first model error met; `lastCut`
+   * says whether the list was cut at `cap` distinct outcomes (or abandoned on the expansion's stop).
    */
-  private generate(p: number, b: number, cap = Infinity): { error: ModelError | null; cut: boolean } {
+  private generate(p: number, b: number, cap = Infinity): ModelError | null {
     const { layout, program, cur, loc0 } = this
     const n = layout.n
     // Unpack the process's local values once; every run starts from a copy.
@@ -424,7 +427,8 @@ export class TickEngine {
       this.pool.set(d.subarray(0, count * this.stride), this.poolLen * this.stride)
       this.poolLen += count
     }
-    return { error, cut }
+    this.lastCut = cut
+    return error
   }
 
   private beginCandidate(): void {

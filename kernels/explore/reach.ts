@@ -248,6 +248,9 @@ function traceTo(inst: Instance, store: StateStore, levelStart: number[], target
   while (level + 1 < levelStart.length && levelStart[level + 1] <= target) level++
   const path = [target]
   const src = new Uint32Array(W)
+  // Outcome lists are cut (at a size ordinary states never reach) and doubled until the successor
+  // wanted comes out, so a state with billions of successors is not expanded in full to find one.
+  const bound: ExpansionBound = { room: 4096, interrupted: false }
   let cur = target
   for (let L = level; L > 0; L--) {
     const from = levelStart[L - 1]
@@ -261,7 +264,7 @@ function traceTo(inst: Instance, store: StateStore, levelStart: number[], target
           return true
         }
         return false
-      })
+      }, bound)
     }
     if (parent < 0) throw new Error('trace reconstruction lost its way: a state without a parent in the previous level')
     path.push(parent)

@@ -216,44 +216,62 @@ export class TickEngine {
     // Recorded outcomes go to a private pool, undeduplicated, with one note per outcome.
     const savedPool = this.pool
     const savedLen = this.poolLen
-    const notes: OutcomeNote[] = []
-    this.recordNotes = notes
-    this.pool = new Uint32Array(this.stride * 64)
-    this.poolLen = 0
     try {
-      for (let b = 0; b < 2; b++) {
-        if ((bounds & (1 << b)) === 0) continue
-        for (let p = 0; p < n; p++) {
-          if ((aliveMask & (1 << p)) === 0) continue
-          const start = this.poolLen
-          this.generate(p, b)
-          this.starts[b * n + p] = start
-          this.counts[b * n + p] = this.poolLen - start
+      // Outcome lists are cut at `cap` and cut again at twice the size while the successor is not
+      // among their combinations, so that a tick out of a wide choice is found without listing
+      // every choice (the same doubling as `successors`).
+      for (let cap = 64; ; cap *= 2) {
+        const notes: OutcomeNote[] = []
+        this.recordNotes = notes
+        this.pool = new Uint32Array(this.stride * 64)
+        this.poolLen = 0
+        let cut = false
+        for (let b = 0; b < 2; b++) {
+          if ((bounds & (1 << b)) === 0) continue
+          for (let p = 0; p < n; p++) {
+            if ((aliveMask & (1 << p)) === 0) continue
+            const start = this.poolLen
+            this.generate(p, b, cap)
+            cut = cut || this.lastCut
+            this.starts[b * n + p] = start
+            this.counts[b * n + p] = this.poolLen - start
+          }
         }
+        const found = this.findCombination(aliveMask, bounds, notes, dst, dstOff, want)
+        if (!cut || (found && (!want || found.matched))) return found?.choice ?? null
       }
+    } finally {
+      this.recordNotes = null
+      this.pool = savedPool
+      this.poolLen = savedLen
+    }
+  }
+
+  /** The combination of the recorded outcomes that gives dst (the one matching `want` first). */
+  private findCombination(aliveMask: number, bounds: number, notes: OutcomeNote[], dst: Uint32Array, dstOff: number,
+    want?: { stepped: number; receivedFrom: number }): { choice: TickChoice; matched: boolean } | null {
+    const { W } = this
+    const n = this.layout.n
+    {
       // Several combinations may reach the same state (a step that changes nothing, or idling).
       // When the caller says which processes stepped and which channels delivered (a lasso's
       // fair edge), the combination that matches is the one told; otherwise the first.
-      let found = null as TickChoice | null
+      let found = null as { choice: TickChoice; matched: boolean } | null
       this.forEachCombination(aliveMask, bounds, this.pool, (out, choice, stepped) => {
         for (let w = 0; w < W; w++) if (out[w] !== dst[dstOff + w]) return false
         const ns: (OutcomeNote | null)[] = []
         for (let p = 0; p < n; p++) ns.push(choice.combo[p] >= 0 ? notes[this.starts[choice.bound * n + p] + choice.combo[p]] : null)
         const candidate = { crashed: choice.crashed, stabilized: choice.stabilized, stepped, notes: ns }
-        if (!want) { found = candidate; return true }
+        if (!want) { found = { choice: candidate, matched: true }; return true }
         let receivedFrom = 0
         ns.forEach((note, p) => {
           for (const r of note?.received ?? []) receivedFrom |= 1 << (r.from * (n - 1) + (p < r.from ? p : p - 1))
         })
-        if (stepped === want.stepped && receivedFrom === want.receivedFrom) { found = candidate; return true }
-        if (!found) found = candidate
+        if (stepped === want.stepped && receivedFrom === want.receivedFrom) { found = { choice: candidate, matched: true }; return true }
+        if (!found) found = { choice: candidate, matched: false }
         return false
       })
       return found
-    } finally {
-      this.recordNotes = null
-      this.pool = savedPool
-      this.poolLen = savedLen
     }
   }
 
@@ -364,6 +382,7 @@ export class TickEngine {
     let error: ModelError | null = null
     let cut = false
     let runs = 0
+    const poolStart = this.poolLen
     const bound = this.bound
     const subsets = 2 ** opt
     subsetLoop: for (let s = 0; s < subsets; s++) {
@@ -413,7 +432,7 @@ export class TickEngine {
         this.writeSends(p)
         this.cand[2 * this.W + 1] = recv
         this.commit(record ? this.noteOfRun(p) : null)
-        if (!record && this.dedupe.size >= cap) {
+        if ((record ? this.poolLen - poolStart : this.dedupe.size) >= cap) {
           cut = true
           break subsetLoop
         }

@@ -91,6 +91,12 @@ describe('one state with a huge expansion (item 12)', () => {
     expect(r.states).toBe(1)
   })
 
+  test('a violation reached through a wide choice gets its trace without listing every choice', () => {
+    const { rows: [row] } = rows(nb('  state b: 0..2147483647 = 0\n  step { b := one of 0..2147483647 }', 'property small = forall p: always p.b < 5', 'check ferry: small for 1 process limit 1000 states'))
+    expect(row.verdict).toBe('violated')
+    expect(row.counterexample?.ticks.map((t) => t.changes.map((c) => `${c.variable} ${c.from}->${c.to}`))).toEqual([['b 0->5']])
+  })
+
   test('a model error in a wide choice is found at once, with its trace', () => {
     const inst = instanceOf('protocol ferry {\n  timing synchronous(delay: 1, idle: 1)\n  state b: 0..10 = 0\n  step { b := one of 0..2147483647 }\n}', 1)
     const r = explore(inst, { limit: 1000 })

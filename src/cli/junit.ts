@@ -4,6 +4,7 @@
 // holding the notebook's errors when nothing was checked. tests/cli/junit.xsd is the structure
 // this follows.
 import type { CheckRow, Report } from '../../kernels/result'
+import { ruleLabel } from '../../kernels/symmetry/rules'
 import { diagnosticLine, instanceLabel, renderCounterexample } from './table'
 
 /** Characters XML 1.0 cannot carry at all (C0 controls but tab, newline, return; lone surrogates; U+FFFE/F). */
@@ -36,10 +37,10 @@ export function rowName(row: CheckRow): string {
   return `check ${row.check + 1} ${row.protocol}: ${row.property} ${size}${constants ? ` with ${constants}` : ''}`
 }
 
-/** The cutoff's refusal reasons as `file:line:column: rule N: message` lines. */
+/** The cutoff's refusal reasons as `file:line:column: name (rule N): message` lines, as the table gives them. */
 export function reasonLines(row: CheckRow, path: string): string[] {
   if (row.cutoff.applies) return []
-  return row.cutoff.reasons.map((r) => diagnosticLine(path, r.line, r.column, `rule ${r.rule}: ${r.message}`))
+  return row.cutoff.reasons.map((r) => diagnosticLine(path, r.line, r.column, `${ruleLabel(r.rule, r.name)}: ${r.message}`))
 }
 
 const seconds = (s: number) => (Number.isFinite(s) && s > 0 ? s : 0).toFixed(3)

@@ -8,6 +8,7 @@ import { pathToFileURL } from 'node:url'
 import type * as Sarif from 'sarif'
 import type { NotebookModel, Span } from '../../kernels/language/model'
 import type { CheckRow, Report } from '../../kernels/result'
+import { ruleLabel } from '../../kernels/symmetry/rules'
 import { rowName } from './junit'
 import { renderCounterexample } from './table'
 
@@ -73,7 +74,7 @@ function rowResult(row: CheckRow, model: NotebookModel, uri: string): Sarif.Resu
       location(uri, checkRegion, `check ${row.check + 1} (${row.protocol})`),
     ],
     ...(reasons.length
-      ? { relatedLocations: reasons.map((r, i) => location(uri, { startLine: Math.max(1, r.line), startColumn: Math.max(1, r.column) }, `cutoff rule ${r.rule}: ${r.message}`, i + 1)) }
+      ? { relatedLocations: reasons.map((r, i) => location(uri, { startLine: Math.max(1, r.line), startColumn: Math.max(1, r.column) }, `cutoff ${ruleLabel(r.rule, r.name)}: ${r.message}`, i + 1)) }
       : {}),
     // Code hosts match a result across runs by these: the row's identity, not its line.
     partialFingerprints: { 'twofoldRow/v1': `${row.protocol}/${row.property}/G_${row.processes}/${constants}/check ${row.check + 1}` },

@@ -56,7 +56,7 @@ const lamps = (step: string) =>
   ].join('\n')
 
 const fixtures = {
-  'mixed.md': lamps('lit := not lit') + '```check\ncheck lamps: steady, dark with cap in 1..2\ncheck lamps: steady limit 2 states\n```\n',
+  'mixed.md': lamps('lit := not lit') + '```check\ncheck lamps: steady, dark with cap in 1..2\ncheck lamps: steady within 2 states\n```\n',
   'refused.md': lamps('lit := some r: seen[r] > 0') + '```check\ncheck lamps: dark\n```\n',
   'broken.md': lamps('lit := not lamp') + '```check\ncheck lamps: dark\n```\n',
 }
@@ -93,7 +93,7 @@ describe('--format junit', () => {
 
   it('gives the cutoff reasons of a refused check as the skipped text, with notebook lines', async () => {
     const ran = await twofold(['check', 'refused.md', '--format', 'junit'], ws.dir)
-    expect(ran.stdout).toMatch(/<skipped type="inconclusive" message="[^"]+">cutoff refused:\nrefused\.md:\d+:\d+: rule 5: /)
+    expect(ran.stdout).toMatch(/<skipped type="inconclusive" message="[^"]+">cutoff refused:\nrefused\.md:\d+:\d+: [\w -]+ \(rule 5\): /)
   })
 
   it('reports notebook errors as one test case in error', async () => {
@@ -146,7 +146,7 @@ describe('--format sarif', () => {
     ])
     const limited = results.find((r) => r.properties!.verdict === 'inconclusive')!
     expect(limited.level).toBe('warning')
-    expect(limited.locations![1].physicalLocation!.region!.startLine).toBe(lineOf(text, 'limit 2 states'))
+    expect(limited.locations![1].physicalLocation!.region!.startLine).toBe(lineOf(text, 'within 2 states'))
     expect(log.runs[0].invocations![0].exitCode).toBe(code)
   })
 
@@ -156,9 +156,9 @@ describe('--format sarif', () => {
     const [result] = log.runs[0].results!
     // Oracle: the reasons of the JSON report.
     expect(result.relatedLocations!.map((l) => [l.physicalLocation!.region!.startLine, l.physicalLocation!.region!.startColumn, l.message!.text])).toEqual(
-      json.checks[0].cutoff.reasons.map((r) => [r.line, r.column, `cutoff rule ${r.rule}: ${r.message}`]),
+      json.checks[0].cutoff.reasons.map((r) => [r.line, r.column, `cutoff ${r.name} (rule ${r.rule}): ${r.message}`]),
     )
-    expect(result.relatedLocations!.some((l) => l.message!.text!.startsWith('cutoff rule 5:'))).toBe(true)
+    expect(result.relatedLocations!.some((l) => / \(rule 5\): /.test(l.message!.text!))).toBe(true)
   })
 
   it('reports each notebook error at its line and column', async () => {

@@ -60,10 +60,10 @@ function sh(script: string, cwd: string, vars: Record<string, string> = {}, file
 }
 
 /** Oracle: the record of an unsharded run, made in-process; the merged record must equal it but for times. */
-async function unshardedRecord(): Promise<ReturnType<typeof parseRecord>> {
+async function unshardedRecord(): Promise<Awaited<ReturnType<typeof parseRecord>>> {
   const ran = await twofold(['check', NOTEBOOK, '--record', 'whole.json'], app)
   expect(ran.code).toBe(0)
-  return parseRecord(readFileSync(join(app, 'whole.json'), 'utf8'))
+  return await parseRecord(readFileSync(join(app, 'whole.json'), 'utf8'))
 }
 
 describe('README: Kubernetes', () => {
@@ -92,7 +92,7 @@ describe('README: Kubernetes', () => {
     expect(merged.stderr).toBe('')
     expect(merged.status).toBe(0)
     expect(merged.stdout).toMatch(/every compared field matches the record/)
-    expect(compareRecords(await unshardedRecord(), parseRecord(readFileSync(join(ws.dir, 'k8s-records', 'merged.json'), 'utf8')))).toEqual([])
+    expect(compareRecords(await unshardedRecord(), await parseRecord(readFileSync(join(ws.dir, 'k8s-records', 'merged.json'), 'utf8')))).toEqual([])
   })
 })
 
@@ -118,7 +118,7 @@ describe('README: Slurm', () => {
     expect(merged.stderr).toBe('')
     expect(merged.status).toBe(0)
     expect(merged.stdout).toMatch(/every compared field matches the record/)
-    expect(compareRecords(await unshardedRecord(), parseRecord(readFileSync(join(app, 'records', 'merged.json'), 'utf8')))).toEqual([])
+    expect(compareRecords(await unshardedRecord(), await parseRecord(readFileSync(join(app, 'records', 'merged.json'), 'utf8')))).toEqual([])
   })
 })
 
@@ -164,6 +164,6 @@ describe('README: CI matrix', () => {
     expect(existsSync(join(ci, 'merged.json'))).toBe(true)
     const whole = await twofold(['check', NOTEBOOK, '--record', 'whole.json'], ci)
     expect(whole.code).toBe(0)
-    expect(compareRecords(parseRecord(readFileSync(join(ci, 'whole.json'), 'utf8')), parseRecord(readFileSync(join(ci, 'merged.json'), 'utf8')))).toEqual([])
+    expect(compareRecords(await parseRecord(readFileSync(join(ci, 'whole.json'), 'utf8')), await parseRecord(readFileSync(join(ci, 'merged.json'), 'utf8')))).toEqual([])
   })
 })

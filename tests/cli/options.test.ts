@@ -39,7 +39,7 @@ describe('--shard auto', () => {
     const ran = await twofold(['check', 'harbour.md', '--shard', 'auto', '--record', 'r.json'], ws.dir, { kernel, env: { CI_NODE_INDEX: '2', CI_NODE_TOTAL: '3' } })
     expect(ran.code).toBe(0)
     expect(seen.options?.shard).toEqual({ index: 2, count: 3 })
-    expect(parseRecord(readFileSync(join(ws.dir, 'r.json'), 'utf8')).options.shard).toEqual({ index: 2, count: 3 })
+    expect((await parseRecord(readFileSync(join(ws.dir, 'r.json'), 'utf8'))).options.shard).toMatchObject({ index: 2, count: 3 })
   })
 
   it('takes the Kubernetes count from --shards', async () => {
@@ -99,8 +99,8 @@ describe('a notebook on standard input', () => {
     expect(ran.code).toBe(0)
     const fromFile = await twofold(['check', 'harbour.md', '--record', 'f.json'], ws.dir, { kernel: recordingKernel().kernel })
     expect(fromFile.code).toBe(0)
-    const read = (f: string) => parseRecord(readFileSync(join(ws.dir, f), 'utf8'))
-    expect(read('r.json').notebook.sha256).toBe(read('f.json').notebook.sha256)
+    const read = async (f: string) => await parseRecord(readFileSync(join(ws.dir, f), 'utf8'))
+    expect((await read('r.json')).notebook.sha256).toBe((await read('f.json')).notebook.sha256)
   })
 })
 
@@ -116,7 +116,7 @@ describe('--quiet', () => {
     const ran = await twofold(['check', 'harbour.md', '--quiet', '--record', 'r.json', '--output', 'report.xml', '--format', 'junit'], ws.dir, { kernel: recordingKernel().kernel })
     expect(ran).toEqual({ code: 0, stdout: '', stderr: '' })
     expect(readFileSync(join(ws.dir, 'report.xml'), 'utf8')).toMatch(/^<\?xml /)
-    expect(parseRecord(readFileSync(join(ws.dir, 'r.json'), 'utf8')).checks).toHaveLength(8)
+    expect((await parseRecord(readFileSync(join(ws.dir, 'r.json'), 'utf8'))).checks).toHaveLength(8)
   })
 })
 

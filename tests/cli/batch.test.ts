@@ -5,7 +5,7 @@
 // 1..3 with MIN 1, MAX 3, STEP 1, COUNT 3 and SLURM_SUBMIT_DIR; GitLab `parallel: 3`: CI_NODE_INDEX
 // 1..3 and CI_NODE_TOTAL 3). `npx twofold` runs bin/twofold.js through a stand-in `npx` on PATH.
 // What cannot run here is left out and named: `kubectl` and `sbatch` themselves, and `npm ci`
-// (the dependencies are installed already).
+// (the dependencies are installed already). Last, a notebook piped to a real process.
 import { spawnSync } from 'node:child_process'
 import { chmodSync, existsSync, mkdirSync, readFileSync, readdirSync, writeFileSync } from 'node:fs'
 import { join } from 'node:path'
@@ -165,5 +165,15 @@ describe('README: CI matrix', () => {
     const whole = await twofold(['check', NOTEBOOK, '--record', 'whole.json'], ci)
     expect(whole.code).toBe(0)
     expect(compareRecords(await parseRecord(readFileSync(join(ci, 'whole.json'), 'utf8')), await parseRecord(readFileSync(join(ci, 'merged.json'), 'utf8')))).toEqual([])
+  })
+})
+
+describe('a real process reading standard input', () => {
+  it('checks a notebook piped to `twofold check -`, as the README shows', () => {
+    expect(readme).toContain('cat notebooks/harbour-cranes.md | npx twofold check -')
+    const ran = sh(`cat ${NOTEBOOK} | npx twofold check - --format junit`, app)
+    expect(ran.stderr).toBe('')
+    expect(ran.status).toBe(0)
+    expect(ran.stdout).toContain('<testsuite name="&lt;stdin&gt;"')
   })
 })

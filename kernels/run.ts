@@ -3,6 +3,8 @@
 // explored, invariants are checked during the search and temporal properties on the product
 // with the automaton of their negation under the fairness of semantics.md.
 import { planOf, type RowPlan, type RunOptions } from './plan'
+// The plan lives in plan.ts; tests and tools written against run.ts still import it from here.
+export { planRows } from './plan'
 import { analyzeNotebook } from './language/analyze'
 import type { CheckModel, Formula, NotebookModel, PropertyModel, ProtocolModel, Term } from './language/model'
 import { explore, type ExploreResult } from './explore/reach'

@@ -48,7 +48,7 @@ const fixtures = {
   'holds.md': notebook('Steady lamps', 'check lamps: steady'),
   'violated.md': notebook('Dark lamps', 'check lamps: steady, dark'),
   'broken.md': notebook('Broken lamps', 'check lamps: steady, dark').replace('property dark = forall p: always not p.lit', 'property dark = forall p: always not p.lamp'),
-  'limited.md': notebook('Limited lamps', 'check lamps: steady limit 2 states'),
+  'limited.md': notebook('Limited lamps', 'check lamps: steady within 2 states'),
   'refused.md': notebook('Crowded lamps', 'check lamps: dark').replace('    lit := not lit', '    lit := some r: seen[r] > 0'),
   'sweep.md': notebook('Swept lamps', 'check lamps: steady, dark with cap in 1..4'),
 }
@@ -114,7 +114,7 @@ describe('twofold check exit codes', () => {
     expect(report.checks[0].cutoff.reasons.map((r) => r.rule)).toContain(5)
     expect(code).toBe(3)
     const ran = await twofold(['check', 'refused.md'], ws.dir)
-    expect(ran.stdout).toMatch(/cutoff refused:\n {4}refused\.md:\d+:\d+: rule \d: /)
+    expect(ran.stdout).toMatch(/cutoff refused:\n {4}refused\.md:\d+:\d+: [a-z-]+ \(rule \d\): /)
   })
 })
 
@@ -151,7 +151,7 @@ describe('twofold --shard and merge', () => {
     for (const i of [1, 2, 3]) expect([0, 1]).toContain((await twofold(['check', guide, '--shard', `${i}/3`, '--record', `guide${i}.json`], ws.dir)).code)
     const merged = await twofold(['merge', 'guide1.json', 'guide2.json', 'guide3.json'], ws.dir)
     expect(merged.code).toBe(0)
-    // Oracle: the unsharded run. `patient for 2..3 processes` puts G_2 and G_3 in different shards,
+    // Oracle: the unsharded run. `patient at N = 2..3` puts G_2 and G_3 in different shards,
     // so agreement must come from each row's own comparison with the cutoff instance.
     const all = await parseRecord(readFileSync(join(ws.dir, 'guide-all.json'), 'utf8'))
     const joined = await parseRecord(merged.stdout)

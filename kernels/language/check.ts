@@ -122,7 +122,7 @@ export function resolveCheck(node: SyntaxNode, ctx: BlockContext, scope: CheckSc
     else if (hi > MAX_PROCESSES) { ctx.error(forClause, `${hi} processes is beyond what an exhaustive check can explore here (at most ${MAX_PROCESSES}); check fewer processes`); ok = false }
     else if (hi > MAX_TEMPORAL_PROCESSES && properties.some((p) => !isInvariant(p))) {
       const p = properties.find((x) => !isInvariant(x))!
-      ctx.error(forClause, `property \`${p.name}\` is temporal (not \`always\` of a state condition), and temporal properties are checked on at most ${MAX_TEMPORAL_PROCESSES} processes (their fairness conditions fill a 32-bit mark); check it for ${MAX_TEMPORAL_PROCESSES} processes or fewer`)
+      ctx.error(forClause, `property \`${p.name}\` is temporal (not \`always\` of a state condition), and temporal properties are checked on at most ${MAX_TEMPORAL_PROCESSES} processes (their fairness conditions must fit the temporal product's 31 marks); check it for ${MAX_TEMPORAL_PROCESSES} processes or fewer`)
       ok = false
     } else {
       sizes = []

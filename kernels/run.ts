@@ -4,6 +4,7 @@
 // with the automaton of their negation under the fairness of semantics.md.
 import type { RowPlan, RunOptions } from './api'
 import { analyzeNotebook } from './language/analyze'
+import { instantiatedText } from './language/instantiate'
 import type { CheckModel, Formula, NotebookModel, PropertyModel, ProtocolModel, Term } from './language/model'
 import { explore, type ExploreResult } from './explore/reach'
 import { modelErrorCounterexample, traceCounterexample } from './explore/trace'
@@ -16,10 +17,11 @@ import { compileInstance, type Instance } from './model/instance'
 import { channelEmpty, compileTerm, isCrashed, isStable, type StateTerm } from './model/observe'
 import { canonicalizer, freePermutations, permuteState } from './symmetry/canon'
 import { decideCutoff } from './symmetry/cutoff'
+import { RULE_NAMES } from './symmetry/rules'
 import { sha256Hex } from './record/hash'
 import type { CheckRow, CutoffInfo, Report } from './result'
 
-/** States explored before a check without `limit` gives up as inconclusive (memory guard). */
+/** States explored before a check without `within K states` gives up as inconclusive (memory guard). */
 export const DEFAULT_LIMIT = 4_000_000
 
 /** Every constant setting of a check: the cartesian product of its sweep, in sweep order. */
@@ -128,7 +130,7 @@ function atomBands(inst: Instance, data: Uint32Array, path: number[], prop: Prop
   const W = inst.words
   return terms.map((t) => {
     const f = compileTerm(inst, t, a)
-    return { text: sourceOf(prop, t.span), values: path.map((s) => f(data, s * W) !== 0) }
+    return { text: instantiatedText(prop, t, t.span, a), values: path.map((s) => f(data, s * W) !== 0) }
   })
 }
 
@@ -157,7 +159,7 @@ export interface FairGraph {
 /**
  * Fairness sets (semantics.md) as transition marks: bit i, process i steps or is crashed; then one
  * bit per channel j->i: i is crashed, or the channel is empty at the source, or i receives from it
- * in the tick; last, under stabilizing, the edge ends in a stable state.
+ * in the tick; last, under eventually synchronous, the edge ends in a stable state.
  */
 export interface FairMarks {
   fairnessSets: number
@@ -177,7 +179,7 @@ export function fairMarks(inst: Instance): FairMarks {
       if (i !== j) channels.push({ i, bit: n + channels.length, index: j * (n - 1) + (i < j ? i : i - 1), test: channelEmpty(inst, j, i) })
     }
   }
-  const stab = inst.protocol.timing.kind === 'stabilizing' ? isStable(inst) : null
+  const stab = inst.protocol.timing.kind === 'eventually synchronous' ? isStable(inst) : null
   const fairnessSets = n + channels.length + (stab ? 1 : 0)
   return {
     fairnessSets,
@@ -332,7 +334,7 @@ export function runRow(model: NotebookModel, plan: RowPlan, opts: RunOptions = {
   try {
     cutoff = decideCutoff(protocol, prop)
   } catch (e) {
-    cutoff = { ...emptyCutoff(), reasons: [{ rule: 0, line: prop.span.line, column: prop.span.column, message: `the class check failed internally (${(e as Error).message})` }] }
+    cutoff = { ...emptyCutoff(), reasons: [{ rule: 0, name: RULE_NAMES[0], line: prop.span.line, column: prop.span.column, message: `the class check failed internally (${(e as Error).message})` }] }
   }
   const row: CheckRow = {
     row: plan.row, check: plan.check, protocol: protocol.name, property: prop.name,
@@ -342,7 +344,11 @@ export function runRow(model: NotebookModel, plan: RowPlan, opts: RunOptions = {
   }
   const finish = (): CheckRow => { row.seconds = (performance.now() - t0) / 1000; return row }
   if (plan.processes === null && !cutoff.applies) {
-    row.note = 'the cutoff does not apply to this protocol and property (see the reasons); give explicit sizes with `for N processes`'
+    row.note = 'the cutoff does not apply to this protocol and property (see the reasons); give explicit sizes with `at N = K`'
+    return finish()
+  }
+  if (check.method === 'induction') {
+    row.note = 'proof by induction (`by induction`) is not available in this build, so nothing was proved; check the property without `by induction` to explore it'
     return finish()
   }
   const n = row.processes
@@ -400,7 +406,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
       row.states = orbitTotal(inst, rr, fixed)
       row.transitions = rr.transitions
       if (!rr.complete) {
-        row.note = rr.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`limit K states\``
+        row.note = rr.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`within K states\``
         return row
       }
       row.verdict = 'holds'
@@ -437,7 +443,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
     return row
   }
   if (!r.complete) {
-    row.note = r.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`limit K states\``
+    row.note = r.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`within K states\``
     return row
   }
   if (inv) {

@@ -5,7 +5,7 @@
 // under a timing bound), its scalars and its per-peer entries; per channel j->i and per message
 // value one field of `delay` bits, bit a-1 set when a copy of age a is in flight (one bit, present,
 // under asynchronous: copies are a set, so a mask is exact); and the `stable` flag under
-// stabilizing. Values are stored minus their type's lower bound.
+// eventually synchronous. Values are stored minus their type's lower bound.
 import type { ProtocolModel, Type } from '../language/model'
 import { evalConst, typeBounds, typeText } from './constants'
 import { ModelSetupError } from './errors'
@@ -48,7 +48,7 @@ export interface MessageInfo {
 }
 
 /** Which timing model an instance runs, with its bounds evaluated (0 under asynchronous). */
-export type TimingKind = 'synchronous' | 'stabilizing' | 'asynchronous'
+export type TimingKind = 'synchronous' | 'eventually synchronous' | 'asynchronous'
 
 /** The packed shape of every state of one instance. Plain data. */
 export interface Layout {
@@ -250,7 +250,7 @@ export function makeLayout(protocol: ProtocolModel, n: number, constants: number
       channel.push(row)
     }
   }
-  const stable = t.kind === 'stabilizing' ? place('stable', 1) : null
+  const stable = t.kind === 'eventually synchronous' ? place('stable', 1) : null
   const words = used === 0 && word === 0 ? 1 : word + 1
 
   const procMask: Uint32Array[] = []

@@ -75,7 +75,7 @@ describe('wide ranges', () => {
       })
     fc.assert(fc.property(cases, ([lo, hi, init, v]) => {
       const text = notebook(`  state b: ${lit(lo)}..${lit(hi)} = ${init === undefined ? 'any' : lit(init)}\n  step { b := ${lit(v)} }`,
-        `property settled = forall p: always p.b = ${lit(v)}`, 'check edges: settled for 1 process limit 5000 states')
+        `property settled = forall p: always p.b = ${lit(v)}`, 'check edges: settled at N = 1 within 5000 states')
       const model = analyzeNotebook(text)
       const errors = located(model, text)
       const inI32 = (x: bigint) => x >= I32_MIN && x <= I32_MAX
@@ -151,7 +151,7 @@ describe('big constants and arithmetic near 2^53', () => {
     fc.assert(fc.property(gen, i32ish, i32ish, (e, k, j) => {
       const E = show(e)
       const text = notebook(`  const k = ${lit(k)}\n  const j = ${lit(j)}\n  state c: -1073741824..1073741823 = ${E}\n  state b: -1073741824..1073741823 = 0\n  step { b := ${E} }`,
-        'property same = forall p: always p.b = 0 or p.b = p.c', 'check edges: same for 1 process')
+        'property same = forall p: always p.b = 0 or p.b = p.c', 'check edges: same at N = 1')
       const model = analyzeNotebook(text)
       const errors = located(model, text)
       const seen = { unsafe: false }
@@ -188,7 +188,7 @@ describe('big sweeps', () => {
       const names = ['x', 'y', 'z'].slice(0, ranges.length)
       const items = names.map((n) => `  const ${n} = 0`).join('\n') + '\n  state b: 0..3 = 0\n  step { b := min(max(' + names.join(' + ') + ', 0), 3) }'
       const sweep = ranges.map(([a, b], i) => `${names[i]} in ${lit(a)}..${lit(b)}`).join(', ')
-      const text = notebook(items, 'property small = forall p: always p.b <= 3', `check edges: small for 1 process with ${sweep}`)
+      const text = notebook(items, 'property small = forall p: always p.b <= 3', `check edges: small at N = 1 with ${sweep}`)
       const model = analyzeNotebook(text)
       const errors = located(model, text)
       const inI32 = (x: bigint) => x >= I32_MIN && x <= I32_MAX

@@ -68,7 +68,7 @@ function term(t: Term, s: ReferenceState, n: number, procs: number[], consts: nu
  * Checks `property` on G_n of `protocol` with its variables bound to `assignment` (1-based process
  * numbers, one per quantified variable, e.g. [1, 2] for p = 1, q = 2). A fair run is one whose cycle
  * meets every fairness bit of the reference graph (every process steps or is down, every channel is
- * empty, received from or has a down receiver, and under stabilizing the run is stable).
+ * empty, received from or has a down receiver, and under eventually synchronous the run is stable).
  */
 export function referenceTemporal(
   protocol: ProtocolModel,

@@ -29,7 +29,7 @@ describe('the widest range keeps its values (item 1)', () => {
     ['0..2147483647', '0', '7'],
     ['-2147483648..-1', '-1', '-2147483648'],
   ])('b: %s starting at %s, set to %s, is violated and both interpreters reach the two values', (range, init, next) => {
-    const { model, rows: [row] } = rows(nb(`  state b: ${range} = ${init}\n  step { b := ${next} }`, `property still = forall p: always p.b = ${init}`, 'check ferry: still for 1 process'))
+    const { model, rows: [row] } = rows(nb(`  state b: ${range} = ${init}\n  step { b := ${next} }`, `property still = forall p: always p.b = ${init}`, 'check ferry: still at N = 1'))
     expect(row.verdict).toBe('violated')
     const p = model.protocols[0]
     const kernel = reachableCanonical(compileInstance(p, 1, []))
@@ -92,7 +92,7 @@ describe('one state with a huge expansion (item 12)', () => {
   })
 
   test('a violation reached through a wide choice gets its trace without listing every choice', () => {
-    const { rows: [row] } = rows(nb('  state b: 0..2147483647 = 0\n  step { b := one of 0..2147483647 }', 'property small = forall p: always p.b < 5', 'check ferry: small for 1 process limit 1000 states'))
+    const { rows: [row] } = rows(nb('  state b: 0..2147483647 = 0\n  step { b := one of 0..2147483647 }', 'property small = forall p: always p.b < 5', 'check ferry: small at N = 1 within 1000 states'))
     expect(row.verdict).toBe('violated')
     expect(row.counterexample?.ticks.map((t) => t.changes.map((c) => `${c.variable} ${c.from}->${c.to}`))).toEqual([['b 0->5']])
   })
@@ -124,7 +124,7 @@ describe('one state with a huge expansion (item 12)', () => {
 describe('a dozen processes (item 18)', () => {
   test('sizes 7 to 12 run and hold', () => {
     const { rows: out } = rows(nb('  message hail\n  state heard[peer]: bool = false\n  on hail from q { heard[q] := true }\n  step { broadcast hail }',
-      'property quiet = forall p, q: always (p.heard[q] implies alive(q))', 'check ferry: quiet for 7..12 processes'))
+      'property quiet = forall p, q: always (p.heard[q] implies alive(q))', 'check ferry: quiet at N = 7..12'))
     expect(out.map((r) => [r.processes, r.verdict])).toEqual([[7, 'holds'], [8, 'holds'], [9, 'holds'], [10, 'holds'], [11, 'holds'], [12, 'holds']])
     // Lock-step, no faults: the start, then every hail in flight, then every entry true. Three states at every size.
     expect(out.map((r) => r.states)).toEqual([3, 3, 3, 3, 3, 3])
@@ -134,7 +134,7 @@ describe('a dozen processes (item 18)', () => {
 describe('division by zero in a property (item 21)', () => {
   const body = '  state b: 0..2 = 0\n  step { b := min(b + 1, 2) }'
   test('an invariant dividing by a value that reaches zero is a model error at the operator, as in the reference', () => {
-    const text = nb(body, 'property ratio = forall p: always (p.b = 0 or 6 / (p.b - 1) > 0)', 'check ferry: ratio for 1 process')
+    const text = nb(body, 'property ratio = forall p: always (p.b = 0 or 6 / (p.b - 1) > 0)', 'check ferry: ratio at N = 1')
     const { model, rows: [row] } = rows(text)
     expect(row.verdict).toBe('violated')
     expect(row.counterexample?.kind).toBe('model-error')
@@ -147,7 +147,7 @@ describe('division by zero in a property (item 21)', () => {
   })
 
   test('a temporal property dividing by zero is a model error too, in both', () => {
-    const text = nb(body, 'property settles = forall p: eventually always 6 % (p.b - 1) = 0', 'check ferry: settles for 1 process')
+    const text = nb(body, 'property settles = forall p: eventually always 6 % (p.b - 1) = 0', 'check ferry: settles at N = 1')
     const { model, rows: [row] } = rows(text)
     expect(row.verdict).toBe('violated')
     expect(row.counterexample?.kind).toBe('model-error')
@@ -165,13 +165,13 @@ describe('order of values (semantics.md): declaration order, not alphabetical', 
   const items = '  message flag(c: {zulu, alpha, unset}, up: bool)\n  state last: {zulu, alpha, unset} = unset\n  state rose: bool = false\n  state sent: bool = false\n' +
     '  on flag(c, up) from q { last := c  rose := up }\n  step { if not sent { broadcast flag(zulu, true)  broadcast flag(alpha, false)  sent := true } }'
   test('the kernel handles zulu before alpha, and (alpha, false) last', () => {
-    const { rows: [a, b] } = rows(nb(items, 'property order = forall p: always p.last != zulu\nproperty bools = forall p: always (p.last = alpha implies not p.rose)', 'check ferry: order, bools for 2 processes'))
+    const { rows: [a, b] } = rows(nb(items, 'property order = forall p: always p.last != zulu\nproperty bools = forall p: always (p.last = alpha implies not p.rose)', 'check ferry: order, bools at N = 2'))
     expect(a.verdict).toBe('holds')
     expect(b.verdict).toBe('holds')
   })
 
   test('the reference interpreter reaches the same states', () => {
-    const model = analyzeNotebook(nb(items, 'property order = forall p: always p.last != zulu', 'check ferry: order for 2 processes'))
+    const model = analyzeNotebook(nb(items, 'property order = forall p: always p.last != zulu', 'check ferry: order at N = 2'))
     const p = model.protocols[0]
     const kernel = reachableCanonical(compileInstance(p, 2, []))
     const reference = referenceReachable(p, 2, [])

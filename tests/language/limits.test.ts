@@ -41,7 +41,7 @@ describe('ranges and values stay 32-bit (item 1)', () => {
   test('a sweep that widens a range past the limit is refused at the sweep, naming the setting and the range', () => {
     expect(errors(nb('  const cap = 2\n  state b: -cap..cap = 0\n  step { b := 1 }', zero,
       'check depot: zero at N = 1 with cap in 1073741823..1073741824'))).toEqual([
-      [17, 33, 'with cap = 1073741824, the range -1073741824..1073741824 of `b` holds 2147483649 values, more than the 2147483648 (2^31) a range may hold; narrow it (line 7, column 9); narrow the sweep'],
+      [17, 28, 'with cap = 1073741824, the range -1073741824..1073741824 of `b` holds 2147483649 values, more than the 2147483648 (2^31) a range may hold; narrow it (line 7, column 9); narrow the sweep'],
     ])
   })
 })
@@ -73,14 +73,14 @@ describe('arithmetic is exact or refused (item 2)', () => {
 describe('sweeps and `any` are validated before running (item 11)', () => {
   test('a sweep bound at 2^53 is refused at the value, not looped over', () => {
     expect(errors(nb('  const k = 1\n  state b: 0..k = 0\n  step { b := 0 }', zero, 'check depot: zero at N = 1 with k in 9007199254740990..9007199254740993'))).toEqual([
-      [17, 43, 'the value 9007199254740990 for `k` is outside the integers a model may hold (-2147483648..2147483647); use a smaller value'],
+      [17, 38, 'the value 9007199254740990 for `k` is outside the integers a model may hold (-2147483648..2147483647); use a smaller value'],
     ])
   })
 
   test(`a sweep of more than ${MAX_SWEEP_ROWS} settings is refused at the with clause`, () => {
     expect(errors(nb('  const x = 1\n  const y = 1\n  const z = 1\n  state b: 0..3000 = 0\n  step { b := x + y + z }', zero,
       'check depot: zero at N = 1 with x in 1..999, y in 1..999, z in 1..999'))).toEqual([
-      [19, 33, 'this sweep gives 997002999 constant settings, more than the 10000 one check may run; narrow its ranges or split the check'],
+      [19, 28, 'this sweep gives 997002999 constant settings, more than the 10000 one check may run; narrow its ranges or split the check'],
     ])
   })
 
@@ -107,7 +107,7 @@ describe('instance sizes (item 18)', () => {
 
   test('temporal properties stop at 5 processes, where their fairness conditions fit the product marks', () => {
     expect(errors(nb('  state b: 0..3 = 0\n  step { b := 0 }', 'property calm = forall p: eventually p.b = 0', 'check depot: calm at N = 6'))).toEqual([
-      [16, 19, 'property `calm` is temporal (not `always` of a state condition), and temporal properties are checked on at most 5 processes (their fairness conditions must fit the temporal product\'s 31 marks); check it at N = 5 or fewer'],
+      [16, 19, 'property `calm` is temporal (not `always` of a state condition), and temporal properties are checked on at most 5 processes (their fairness conditions must fit the temporal product\'s 31 marks); write `at N = 5` or fewer'],
     ])
   })
 })

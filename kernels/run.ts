@@ -372,7 +372,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
     : undefined
   const inv = invariantBody(prop.formula)
   if (!inv && n > MAX_TEMPORAL_PROCESSES) {
-    throw new ModelSetupError(`temporal properties are checked on at most ${MAX_TEMPORAL_PROCESSES} processes (their fairness conditions fill a 32-bit mark), not ${n} (line ${prop.span.line}, column ${prop.span.column})`, prop.span)
+    throw new ModelSetupError(`temporal properties are checked on at most ${MAX_TEMPORAL_PROCESSES} processes (their fairness conditions must fit the temporal product's 31 marks), not ${n} (line ${prop.span.line}, column ${prop.span.column})`, prop.span)
   }
   const predicates = inv ? chosen.map((a) => statePredicate(inv, (t) => compileTerm(inst, t, a))) : []
   // A division in the property is evaluated in every atom on every state, whatever the connectives

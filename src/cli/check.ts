@@ -4,6 +4,8 @@ import { canonicalJsonPretty } from '../../kernels/record/canonical'
 import type { RecordKernel } from '../../kernels/record/kernel'
 import { buildRecord } from '../../kernels/record/record'
 import type { RunOptions } from '../../kernels/api'
+import { planOf } from '../../kernels/plan'
+import { OutputError, refuseInputAsOutput } from './atomic'
 import { resolveCheckOptions, type OutputFlags } from './check-options'
 import { REFUSED, checkExitCode } from './exit'
 import { CliFailure, STDIN_NAME, readInput, readStdin, writeOutput, type CliIo } from './io'
@@ -23,10 +25,22 @@ export async function runCheck(io: CliIo, loadKernel: () => Promise<RecordKernel
   const options = resolveCheckOptions(io, fromStdin ? undefined : given, flags)
   const { shard } = options
   const path = fromStdin ? STDIN_NAME : given
+  if (flags.record !== undefined && !fromStdin) {
+    try {
+      refuseInputAsOutput(io.cwd, flags.record, [path], 'record')
+    } catch (e) {
+      if (e instanceof OutputError) throw new CliFailure(e.message, REFUSED)
+      throw e
+    }
+  }
   const text = fromStdin ? await readStdin(io, REFUSED) : await readInput(io, path, 'notebook', REFUSED)
   const kernel = await loadKernel()
   const model = await kernel.analyzeNotebook(text)
   const hasErrors = model.diagnostics.some((d) => d.severity === 'error')
+  if (shard && !hasErrors) {
+    const rows = planOf(model, flags.only).rows
+    if (rows > 0 && shard.index > rows) throw new CliFailure(`--shard ${shard.index}/${shard.count} selects no row: the plan of ${path} has ${rows} row${rows === 1 ? '' : 's'}`, REFUSED)
+  }
   if (flags.only !== undefined && !hasErrors) {
     const named = model.checks.some(
       (check) => model.protocols[check.protocol]?.name === flags.only || check.properties.some((p) => p.name === flags.only),

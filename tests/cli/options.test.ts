@@ -148,6 +148,14 @@ describe('colour in the table', () => {
     expect((await run(['--json', '--color'], { stdoutTTY: true })).stdout).not.toContain(ESC)
   })
 
+  it('keeps colour out of a report file, even when the table on stdout is coloured', async () => {
+    const ran = await run(['--color', '--output', 'table.txt'], {})
+    expect(ran.stdout).toContain(ESC)
+    const file = readFileSync(join(ws.dir, 'table.txt'), 'utf8')
+    expect(file).not.toContain(ESC)
+    expect(file).toBe(ran.stdout.replace(/\x1b\[[0-9;]*m/g, '').replace('report (table) written to table.txt\n', ''))
+  })
+
   it('refuses an unknown --color value with one line', async () => {
     expect(await run(['--color=sometimes'], {})).toEqual({ code: 2, stdout: '', stderr: 'twofold: --color takes always, never or auto (as --color=WHEN), not "sometimes"\n' })
   })

@@ -106,7 +106,7 @@ export function renderCounterexample(cx: Counterexample, assignment: Record<stri
 export function renderTick(tick: TickRecord): string {
   const parts: string[] = []
   if (tick.crashed.length) parts.push('crash ' + tick.crashed.map((p) => `#${p}`).join(' '))
-  if (tick.stabilized) parts.push('GST')
+  if (tick.gst) parts.push('GST')
   parts.push(tick.stepped.length ? 'step ' + tick.stepped.map((p) => `#${p}`).join(' ') : 'no step')
   for (const m of tick.received) parts.push(`#${m.to}<-#${m.from} ${m.message}`)
   for (const m of tick.sent) parts.push(`#${m.from}->#${m.to} ${m.message}`)

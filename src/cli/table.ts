@@ -99,6 +99,12 @@ export function renderCounterexample(cx: Counterexample, assignment: Record<stri
     if (cx.kind === 'lasso' && i === cx.loopStart) lines.push('    -- from here the ticks repeat forever --')
     lines.push(`    t${tick.tick}  ${renderTick(tick)}`)
   })
+  // The property's atoms as written, with the assignment's processes filled in (`#1.suspect[#2]`).
+  if (cx.atoms?.length) {
+    lines.push('    atoms at the start, then after each tick (+ holds, . does not):')
+    const width = Math.max(...cx.atoms.map((a) => a.text.length))
+    for (const a of cx.atoms) lines.push(`      ${a.text.padEnd(width)}  ${a.values.map((v) => (v ? '+' : '.')).join('')}`)
+  }
   return lines
 }
 

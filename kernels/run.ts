@@ -11,7 +11,8 @@ import { modelErrorCounterexample, traceCounterexample } from './explore/trace'
 import { fromModel } from './logic/ltl'
 import { Int32Buffer } from './logic/buffer'
 import { checkLtl, type System } from './logic/product'
-import { ModelSetupError } from './model/errors'
+import { MAX_TEMPORAL_PROCESSES } from './language/limits'
+import { ModelSetupError, PropertyFault } from './model/errors'
 import { compileInstance, type Instance } from './model/instance'
 import { channelEmpty, compileTerm, isCrashed, isStable, type StateTerm } from './model/observe'
 import { canonicalizer, freePermutations, permuteState } from './symmetry/canon'
@@ -61,6 +62,16 @@ export function planRows(model: NotebookModel, opts: RunOptions = {}): RowPlan[]
   if (!opts.shard) return plan
   const { index, count } = opts.shard
   return plan.filter((r) => r.row % count === index - 1)
+}
+
+/** Does the term divide (`/` or `%`) anywhere? */
+function divides(t: Term): boolean {
+  switch (t.k) {
+    case 'bin': return t.op === '/' || t.op === '%' || divides(t.left) || divides(t.right)
+    case 'min': case 'max': return divides(t.left) || divides(t.right)
+    case 'neg': return divides(t.arg)
+    default: return false
+  }
 }
 
 /** Does the formula contain a temporal operator? */
@@ -366,9 +377,16 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
         opts.onProgress!({ check: row.check, property: prop.name, processes: n, ...p })
     : undefined
   const inv = invariantBody(prop.formula)
+  if (!inv && n > MAX_TEMPORAL_PROCESSES) {
+    throw new ModelSetupError(`temporal properties are checked on at most ${MAX_TEMPORAL_PROCESSES} processes (their fairness conditions fill a 32-bit mark), not ${n} (line ${prop.span.line}, column ${prop.span.column})`, prop.span)
+  }
   const predicates = inv ? chosen.map((a) => statePredicate(inv, (t) => compileTerm(inst, t, a))) : []
+  // A division in the property is evaluated in every atom on every state, whatever the connectives
+  // around it, so that a division by zero is a model error (as in protocols) however it is guarded.
+  const dividing = inv && terms.some(divides) ? chosen.map((a) => terms.map((t) => compileTerm(inst, t, a))) : null
   let failed = -1
   const invariant = inv ? (w: Uint32Array, o: number) => {
+    if (dividing) for (const atoms of dividing) for (const t of atoms) t(w, o)
     for (let k = 0; k < predicates.length; k++) if (!predicates[k](w, o)) { failed = k; return false }
     return true
   } : undefined
@@ -376,7 +394,8 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   // property names stay fixed and the others are interchangeable (the class check granted it, and
   // a protocol cannot tell processes apart). Temporal properties are checked unreduced, because
   // the fairness sets name processes and a quotient would mix them.
-  const reduce = inv !== null && cutoff.applies && cutoff.processes !== null && n - cutoff.processes >= 2
+  // Permutations are enumerated per state, so only up to 5 free processes (120 permutations).
+  const reduce = inv !== null && cutoff.applies && cutoff.processes !== null && n - cutoff.processes >= 2 && n - chosen[0].length <= 5
   if (reduce) {
     const fixed = chosen[0]
     const rr = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: progress, invariant, canonicalize: canonicalizer(inst, fixed) })
@@ -441,7 +460,20 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   }
   for (const a of chosen) {
     const compiled = terms.map((t) => compileTerm(inst, t, a))
-    const sys = systemOf(inst, r, graph, compiled)
+    let sys: System
+    try {
+      sys = systemOf(inst, r, graph, compiled)
+    } catch (e) {
+      if (!(e instanceof PropertyFault)) throw e
+      // An atom divides by zero on a reachable state: find the shortest trace to such a state.
+      const again = explore(inst, { limit, shouldStop: opts.shouldStop, invariant: (w, o) => { for (const t of compiled) t(w, o); return true } })
+      if (!again.error || !again.trace) throw e
+      row.verdict = 'violated'
+      row.complete = false
+      row.assignment = named(prop, a)
+      row.counterexample = modelErrorCounterexample(inst, again.store, again.trace, again.error)
+      return row
+    }
     const ltl = fromModel(prop.formula, (t) => terms.indexOf(t))
     let stoppedByLimit = false
     const v = checkLtl(sys, ltl, {

@@ -4,7 +4,9 @@
 // earlier spellings parse so that the error can give the current one at the same place.
 import type { SyntaxNode } from '@lezer/common'
 import type { BlockContext } from './context'
-import type { CheckModel, Formula, PropertyModel, ProtocolModel, Span, SweepItem } from './model'
+import { protocolProblems, termProblems } from './bounds'
+import { isModelValue, MAX_PROCESSES, MAX_SWEEP_ROWS, MAX_SWEEP_VALUES, MAX_TEMPORAL_PROCESSES } from './limits'
+import type { CheckModel, Formula, PropertyModel, ProtocolModel, Span, SweepItem, Term } from './model'
 import { DeclaredProperty, resolveProperty } from './property'
 import { didYouMean } from './suggest'
 
@@ -13,8 +15,6 @@ export interface CheckScope {
   protocols: Map<string, { index: number; model: ProtocolModel; broken: boolean; from: number }>
   properties: Map<string, { decl: DeclaredProperty; from: number }>
 }
-
-const MAX_SIZE = 12
 
 function signed(node: SyntaxNode, ctx: BlockContext): number {
   return Number(ctx.text(node).replace(/\s+/g, ''))
@@ -96,7 +96,12 @@ function sizesOf(clause: SyntaxNode, ctx: BlockContext, properties: PropertyMode
   const [lo, hi] = nums.length === 2 ? nums : [nums[0], nums[0]]
   if (lo < 1) { ctx.error(clause, 'a check needs at least 1 process; write `at N = 1` or more'); return null }
   if (lo > hi) { ctx.error(clause, `the size range ${lo}..${hi} is empty; write the smaller size first, as in \`at N = ${hi}..${lo}\``); return null }
-  if (hi > MAX_SIZE) { ctx.error(clause, `${hi} processes is beyond what an exhaustive check can explore here (at most ${MAX_SIZE}); check fewer processes`); return null }
+  if (hi > MAX_PROCESSES) { ctx.error(clause, `${hi} processes is beyond what an exhaustive check can explore here (at most ${MAX_PROCESSES}); check fewer processes`); return null }
+  const temporalProp = properties.find((x) => !isInvariant(x))
+  if (hi > MAX_TEMPORAL_PROCESSES && temporalProp) {
+    ctx.error(clause, `property \`${temporalProp.name}\` is temporal (not \`always\` of a state condition), and temporal properties are checked on at most ${MAX_TEMPORAL_PROCESSES} processes (their fairness conditions fill a 32-bit mark); check it at N = ${MAX_TEMPORAL_PROCESSES} or fewer`)
+    return null
+  }
   let ok = true
   for (const p of properties) {
     const need = Math.max(p.vars.length, p.maxFixed)
@@ -111,17 +116,56 @@ function sizesOf(clause: SyntaxNode, ctx: BlockContext, properties: PropertyMode
   return sizes
 }
 
-/** Whether a formula is `always S` with S free of temporal operators (what induction proves). */
-function inductive(f: Formula): boolean {
-  const stateOnly = (g: Formula): boolean => {
-    switch (g.k) {
-      case 'true': case 'false': case 'atom': return true
-      case 'not': return stateOnly(g.arg)
-      case 'and': case 'or': case 'implies': case 'iff': return stateOnly(g.left) && stateOnly(g.right)
-      default: return false
-    }
+function hasTemporal(f: Formula): boolean {
+  switch (f.k) {
+    case 'atom': case 'true': case 'false': return false
+    case 'always': case 'eventually': case 'next': case 'until': case 'unless': return true
+    case 'not': return hasTemporal(f.arg)
+    default: return hasTemporal(f.left) || hasTemporal(f.right)
   }
-  return f.k === 'always' && stateOnly(f.arg)
+}
+
+/** `always P` with P free of temporal operators: checked as an invariant, without fairness marks. */
+function isInvariant(p: PropertyModel): boolean {
+  return p.formula.k === 'always' && !hasTemporal(p.formula.arg)
+}
+
+function termsOf(f: Formula, out: Term[] = []): Term[] {
+  if (f.k === 'atom') out.push(f.term)
+  else if ('arg' in f) termsOf(f.arg, out)
+  else if ('left' in f) { termsOf(f.left, out); termsOf(f.right, out) }
+  return out
+}
+
+/** The settings a sweep gives, one constant vector each (the same order as the runner's plan). */
+function sweepSettings(protocol: ProtocolModel, sweep: SweepItem[]): number[][] {
+  let out: number[][] = [protocol.consts.map((c) => c.value)]
+  for (const item of sweep) out = out.flatMap((base) => item.values.map((v) => { const s = base.slice(); s[item.constIndex] = v; return s }))
+  return out
+}
+
+/**
+ * The limits (limits.ts) under every constant setting of the check: the protocol's under swept
+ * settings (its declared setting was checked with the protocol), the properties' under all.
+ * Reports the first problem of a swept setting at the sweep, naming the setting and the construct.
+ */
+function checkSettings(protocol: ProtocolModel, properties: PropertyModel[], sweep: SweepItem[], at: SyntaxNode, ctx: BlockContext): boolean {
+  if (sweep.length === 0) {
+    const defaults = protocol.consts.map((c) => c.value)
+    let ok = true
+    for (const p of properties) {
+      for (const problem of termProblems(protocol, termsOf(p.formula), defaults)) { ctx.error(problem.span, problem.message); ok = false }
+    }
+    return ok
+  }
+  for (const setting of sweepSettings(protocol, sweep)) {
+    const problem = protocolProblems(protocol, setting)[0] ?? properties.map((p) => termProblems(protocol, termsOf(p.formula), setting)[0]).find((x) => x)
+    if (!problem) continue
+    const named = sweep.map((s) => `${protocol.consts[s.constIndex].name} = ${setting[s.constIndex]}`).join(', ')
+    ctx.error(at, `with ${named}, ${problem.message} (line ${problem.span.line}, column ${problem.span.column}); narrow the sweep`)
+    return false
+  }
+  return true
 }
 
 /** Resolves one check; null when it cannot run (its errors are reported). */
@@ -198,18 +242,32 @@ export function resolveCheck(node: SyntaxNode, ctx: BlockContext, scope: CheckSc
       continue
     }
     const range = item.getChild('SweepRange')
+    const numbers = range ? range.getChildren('SignedNumber') : [item.getChild('SignedNumber')!]
+    const bad = numbers.find((n) => !isModelValue(signed(n, ctx)))
+    if (bad) {
+      ctx.error(bad, `the value ${ctx.text(bad)} for \`${cname}\` is outside the integers a model may hold (${-(2 ** 31)}..${2 ** 31 - 1}); use a smaller value`)
+      ok = false
+      continue
+    }
     let values: number[]
     if (range) {
-      const [lo, hi] = range.getChildren('SignedNumber').map((n) => signed(n, ctx))
+      const [lo, hi] = numbers.map((n) => signed(n, ctx))
       if (lo > hi) { ctx.error(range, `the range ${lo}..${hi} for \`${cname}\` is empty; write the smaller value first`); ok = false; continue }
-      if (hi - lo >= 1000) { ctx.error(range, `sweeping \`${cname}\` over ${hi - lo + 1} values is too many for one check; narrow the range`); ok = false; continue }
+      if (hi - lo + 1 > MAX_SWEEP_VALUES) { ctx.error(range, `sweeping \`${cname}\` over ${hi - lo + 1} values is more than the ${MAX_SWEEP_VALUES} one sweep item may list; narrow the range`); ok = false; continue }
       values = []
       for (let v = lo; v <= hi; v++) values.push(v)
     } else {
-      values = [signed(item.getChild('SignedNumber')!, ctx)]
+      values = [signed(numbers[0], ctx)]
     }
     sweep.push({ constIndex, values, span: ctx.span(item) })
   }
+  const withClause = node.getChild('WithClause')
+  const rows = sweep.reduce((n, s) => n * s.values.length, 1)
+  if (withClause && rows > MAX_SWEEP_ROWS) {
+    ctx.error(withClause, `this sweep gives ${rows} constant settings, more than the ${MAX_SWEEP_ROWS} one check may run; narrow its ranges or split the check`)
+    ok = false
+  } else if (withClause && ok && !proto.broken && !checkSettings(protocol, properties, sweep, withClause, ctx)) ok = false
+  else if (!withClause && ok && !proto.broken && !checkSettings(protocol, properties, [], protoNode, ctx)) ok = false
 
   let limit: number | null = null
   const bound = clauses.within
@@ -222,7 +280,7 @@ export function resolveCheck(node: SyntaxNode, ctx: BlockContext, scope: CheckSc
   const method = clauses.by ? 'induction' : 'exploration'
   if (clauses.by) {
     for (let i = 0; i < properties.length; i++) {
-      if (inductive(properties[i].formula)) continue
+      if (isInvariant(properties[i])) continue
       const at = propNodes.find((n) => ctx.text(n) === properties[i].name)!
       ctx.error(at, `property \`${properties[i].name}\` is not \`always P\` with P free of temporal operators, so it cannot be proved by induction; check it in a line without \`by induction\``)
       ok = false

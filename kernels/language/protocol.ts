@@ -8,6 +8,7 @@ import type {
   Binder, BinOp, ConstDecl, Expr, FieldDecl, Handler, MessageDecl, ProtocolModel, Span, Stmt, Target,
   Timing, Type, VarDecl,
 } from './model'
+import { protocolProblems } from './bounds'
 import { BOOL, ConstantError, evalConstant, INT, sameSort, Sort, sortName, sortOf } from './sorts'
 import { didYouMean } from './suggest'
 
@@ -141,6 +142,13 @@ class ProtocolResolver {
       step: this.step,
       binders: this.binders,
       block: ctx.block,
+    }
+    if (!this.broken) {
+      // Ranges, constants and arithmetic beyond the limits (limits.ts), under the declared constants.
+      for (const p of protocolProblems(model, this.constValues)) {
+        ctx.error(p.span, p.message)
+        this.broken = true
+      }
     }
     return { model, broken: this.broken }
   }

@@ -90,9 +90,24 @@ function truth(x: number): boolean {
 }
 
 /**
- * Integer arithmetic as plain mathematics on small integers. Division truncates toward zero and
- * `%` takes the sign of the dividend (the usual machine-integer convention); both raise a model
- * error on a zero divisor.
+ * Exact integer arithmetic: `+ - * / %` are computed on BigInt, so a rounded result cannot hide
+ * here. The checker refuses every expression whose intermediate values could leave the safe
+ * integers (kernels/language/bounds.ts); a result outside them is therefore a checker defect, and
+ * the reference says so rather than going on with an inexact number.
+ */
+export function exactArith(op: '+' | '-' | '*' | '/' | '%', a: number, b: number): number {
+  const x = BigInt(a)
+  const y = BigInt(b)
+  const r = op === '+' ? x + y : op === '-' ? x - y : op === '*' ? x * y : op === '/' ? x / y : x % y
+  const v = Number(r)
+  if (!Number.isSafeInteger(v) || BigInt(v) !== r) throw new Error(`the reference met ${r}, outside the safe integers: the checker should have refused this expression`)
+  return v
+}
+
+/**
+ * Integer arithmetic as plain mathematics (exactArith). Division truncates toward zero and `%`
+ * takes the sign of the dividend (the usual machine-integer convention); both raise a model error
+ * on a zero divisor.
  */
 function evalExpr(e: Expr, l: Local | null, env: Env, consts: number[], n: number): number {
   const ev = (x: Expr) => evalExpr(x, l, env, consts, n)
@@ -135,15 +150,10 @@ function evalExpr(e: Expr, l: Local | null, env: Env, consts: number[], n: numbe
       const a = ev(e.left)
       const b = ev(e.right)
       switch (e.op) {
-        case '+': return a + b
-        case '-': return a - b
-        case '*': return a * b
-        case '/':
+        case '+': case '-': case '*': return exactArith(e.op, a, b)
+        case '/': case '%':
           if (b === 0) throw new ModelError(`division by zero at line ${e.span.line}`)
-          return Math.trunc(a / b)
-        case '%':
-          if (b === 0) throw new ModelError(`division by zero at line ${e.span.line}`)
-          return a % b
+          return exactArith(e.op, a, b)
         case '=': return a === b ? 1 : 0
         case '!=': return a !== b ? 1 : 0
         case '<': return a < b ? 1 : 0

@@ -2,7 +2,9 @@
 // runs each row with the kernel: the class check decides the cutoff, the instance is compiled and
 // explored, invariants are checked during the search and temporal properties on the product
 // with the automaton of their negation under the fairness of semantics.md.
-import type { RowPlan, RunOptions } from './api'
+import { planOf, type RowPlan, type RunOptions } from './plan'
+// The plan lives in plan.ts; tests and tools written against run.ts still import it from here.
+export { planRows } from './plan'
 import { analyzeNotebook } from './language/analyze'
 import { instantiatedText } from './language/instantiate'
 import type { CheckModel, Formula, NotebookModel, PropertyModel, ProtocolModel, Term } from './language/model'
@@ -19,50 +21,10 @@ import { canonicalizer, freePermutations, permuteState } from './symmetry/canon'
 import { decideCutoff } from './symmetry/cutoff'
 import { RULE_NAMES } from './symmetry/rules'
 import { sha256Hex } from './record/hash'
-import type { CheckRow, CutoffInfo, Report } from './result'
+import type { CheckRow, CutoffInfo, Report, Verdict } from './result'
 
 /** States explored before a check without `within K states` gives up as inconclusive (memory guard). */
 export const DEFAULT_LIMIT = 4_000_000
-
-/** Every constant setting of a check: the cartesian product of its sweep, in sweep order. */
-function settings(protocol: ProtocolModel, check: CheckModel): number[][] {
-  let out: number[][] = [protocol.consts.map((c) => c.value)]
-  for (const item of check.sweep) {
-    const next: number[][] = []
-    for (const base of out) {
-      for (const v of item.values) {
-        const s = base.slice()
-        s[item.constIndex] = v
-        next.push(s)
-      }
-    }
-    out = next
-  }
-  return out
-}
-
-/**
- * The deterministic plan of a notebook's rows: checks in notebook order, then properties in the
- * order listed, then sizes, then constant settings. `only` keeps the rows whose property or
- * protocol has that name; `shard` keeps rows whose index is congruent to index-1 modulo count.
- */
-export function planRows(model: NotebookModel, opts: RunOptions = {}): RowPlan[] {
-  const plan: RowPlan[] = []
-  model.checks.forEach((check, c) => {
-    const protocol = model.protocols[check.protocol]
-    check.properties.forEach((prop, p) => {
-      if (opts.only !== undefined && opts.only !== prop.name && opts.only !== protocol.name) return
-      for (const processes of check.sizes ?? [null]) {
-        for (const constants of settings(protocol, check)) {
-          plan.push({ row: plan.length, check: c, property: p, processes, constants })
-        }
-      }
-    })
-  })
-  if (!opts.shard) return plan
-  const { index, count } = opts.shard
-  return plan.filter((r) => r.row % count === index - 1)
-}
 
 /** Does the term divide (`/` or `%`) anywhere? */
 function divides(t: Term): boolean {
@@ -322,8 +284,40 @@ function emptyCutoff(): CutoffInfo {
   return { applies: false, processes: null, statement: '', tex: '', passed: [], reasons: [] }
 }
 
-/** Runs one planned row. Never throws: a failure becomes verdict `error` with a note. */
-export function runRow(model: NotebookModel, plan: RowPlan, opts: RunOptions = {}): CheckRow {
+/**
+ * Verdicts of cutoff instances G_k already explored in one run, keyed by check, property and
+ * constants, so that every explicit size of that key compares with G_k without exploring it again.
+ */
+export type CutoffVerdicts = Map<string, Verdict>
+
+/**
+ * Runs one planned row. Never throws: a failure becomes verdict `error` with a note. A row with an
+ * explicit size n at or above the cutoff k (where the cutoff applies) is also compared with the
+ * cutoff instance G_k, explored here unless `cutoffVerdicts` already holds it: `agreement` is
+ * therefore a property of the row alone, the same whether or not the run is sharded.
+ */
+export function runRow(model: NotebookModel, plan: RowPlan, opts: RunOptions = {}, cutoffVerdicts: CutoffVerdicts = new Map()): CheckRow {
+  const row = runPlainRow(model, plan, opts)
+  const k = row.cutoff.processes
+  if (!row.cutoff.applies || k === null || row.processes < k) return row
+  const key = `${plan.check}|${plan.property}|${plan.constants.join(',')}`
+  if (row.processes === k) cutoffVerdicts.set(key, row.verdict)
+  if (plan.processes === null || (row.verdict !== 'holds' && row.verdict !== 'violated')) return row
+  let atCutoff = cutoffVerdicts.get(key)
+  if (atCutoff === undefined) {
+    atCutoff = runPlainRow(model, { ...plan, processes: k }, { shouldStop: opts.shouldStop }).verdict
+    cutoffVerdicts.set(key, atCutoff)
+  }
+  if (atCutoff !== 'holds' && atCutoff !== 'violated') return row
+  row.agreement = atCutoff === row.verdict
+  if (!row.agreement) {
+    const said = `sizes disagree: G_${row.processes} ${row.verdict === 'holds' ? 'holds' : 'is violated'} but the cutoff instance G_${k} ${atCutoff === 'holds' ? 'holds' : 'is violated'}; the cutoff claim is contradicted; please report this notebook`
+    row.note = row.note ? `${said}. ${row.note}` : said
+  }
+  return row
+}
+
+function runPlainRow(model: NotebookModel, plan: RowPlan, opts: RunOptions): CheckRow {
   const t0 = performance.now()
   const check = model.checks[plan.check]
   const protocol = model.protocols[check.protocol]
@@ -512,33 +506,15 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   return row
 }
 
-/**
- * Marks, for checks with explicit sizes where the cutoff applies, whether the sizes at or above
- * the cutoff agree. A disagreement is a soundness alarm: the theorem says they cannot differ.
- */
-export function markAgreement(rows: CheckRow[]): CheckRow[] {
-  const groups = new Map<string, CheckRow[]>()
-  for (const r of rows) {
-    if (!r.cutoff.applies || r.cutoff.processes === null || r.processes < r.cutoff.processes) continue
-    if (r.verdict !== 'holds' && r.verdict !== 'violated') continue
-    const key = `${r.check}|${r.property}|${JSON.stringify(r.constants)}`
-    groups.set(key, [...(groups.get(key) ?? []), r])
-  }
-  for (const g of groups.values()) {
-    if (g.length < 2) continue
-    const agree = g.every((r) => r.verdict === g[0].verdict)
-    for (const r of g) r.agreement = agree
-  }
-  return rows
-}
-
 /** Runs every planned row of a notebook: the `--json` document of records.md. */
 export async function runNotebook(text: string, path: string, opts: RunOptions = {}): Promise<Report> {
   const model = analyzeNotebook(text)
   const sha256 = await sha256Hex(text)
   const errors = model.diagnostics.filter((d) => d.severity === 'error').map((d) => ({ line: d.line, column: d.column, message: d.message }))
   if (errors.length > 0) return { notebook: { path, sha256 }, errors, checks: [] }
-  const rows = planRows(model, opts).map((plan) => runRow(model, plan, opts))
-  return { notebook: { path, sha256 }, errors, checks: markAgreement(rows) }
+  const cutoffVerdicts: CutoffVerdicts = new Map()
+  const checks: CheckRow[] = []
+  for (const plan of planOf(model, opts.only).select(opts.shard)) checks.push(runRow(model, plan, opts, cutoffVerdicts))
+  return { notebook: { path, sha256 }, errors, checks }
 }
 

@@ -18,6 +18,17 @@ export interface ExploreProgress {
   seconds: number
 }
 
+/**
+ * Sees every edge of the exploration, source by source in index order (breadth-first numbering),
+ * so a graph can be recorded in the same pass. Not for reduced explorations.
+ */
+export interface EdgeRecorder {
+  /** Source `index` (held in src[0..words)) is about to be expanded. */
+  beginSource(index: number, src: Uint32Array): void
+  /** One successor of the current source: its store index and what `successors` reported. */
+  edge(target: number, dst: Uint32Array, stepped: number, receivedFrom: number): void
+}
+
 export interface ExploreOptions {
   /** Stop (incomplete, `limitHit`) rather than store more than this many states. */
   limit?: number
@@ -38,6 +49,8 @@ export interface ExploreOptions {
    * (outcome 'model-error', with its trace). Default: stop at the first error.
    */
   continueOnError?: boolean
+  /** Records every edge during the search (see `EdgeRecorder`); incompatible with `canonicalize`. */
+  edges?: EdgeRecorder
 }
 
 export interface ExploreResult {
@@ -122,6 +135,8 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
   let errorSource = -1
 
   const canon = opts.canonicalize
+  const rec = opts.edges
+  if (rec && canon) throw new Error('internal error: edges are recorded between real states, not representatives')
   const rep = new Uint32Array(W)
   let init = inst.initialStates()
   if (canon) {
@@ -143,7 +158,7 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
   }
 
   const seen = new TargetSet()
-  const emit = (succ: Uint32Array): boolean => {
+  const emit = (succ: Uint32Array, stepped: number, receivedFrom: number): boolean => {
     let dst = succ
     if (canon) { canon(succ, 0, rep); dst = rep }
     let idx = store.lookup(dst, 0)
@@ -154,6 +169,7 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
       }
       idx = store.insert(dst, 0)
       if (seen.add(idx)) transitions++
+      if (rec) rec.edge(idx, dst, stepped, receivedFrom)
       if (invariant && !invariant(dst, 0)) {
         violation = idx
         halted = true
@@ -162,6 +178,7 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
       return false
     }
     if (seen.add(idx)) transitions++
+    if (rec) rec.edge(idx, dst, stepped, receivedFrom)
     return false
   }
 
@@ -178,6 +195,7 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
     }
     store.get(head, src, 0)
     seen.reset()
+    if (rec) rec.beginSource(head, src)
     const err = inst.successors(src, 0, emit)
     if (err && !halted && !error) {
       error = err

@@ -32,6 +32,8 @@ export interface MarkedGraph {
 export interface EmptinessWork {
   /** Iterations of the main loop: one per pending edge read plus one per frame popped. */
   iterations: number
+  /** Bytes of the search's packed tables and stacks when it ended (their peak: they never shrink). */
+  bytes?: number
 }
 
 /** Options of `findAcceptingLasso`. */
@@ -109,7 +111,11 @@ export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: Empti
     if (top > maxId) { maxId = top; num.ensure(top + 1) }
   }
   const done = (r: EmptinessResult): EmptinessResult => {
-    if (opts.work) opts.work.iterations = iterations
+    if (opts.work) {
+      opts.work.iterations = iterations
+      opts.work.bytes = [num, active, rootNum, rootAcc, rootIn, frameNode, frameStart, framePos, edgeTo, edgeMark]
+        .reduce((b, x) => b + x.data.byteLength, 0)
+    }
     return r
   }
 

@@ -6,14 +6,14 @@ import type { RowPlan, RunOptions } from './api'
 import { analyzeNotebook } from './language/analyze'
 import type { CheckModel, Formula, NotebookModel, PropertyModel, ProtocolModel, Term } from './language/model'
 import { FairGraphRecorder, lassoTicks, systemOf } from './explore/fairgraph'
-import { explore, type ExploreResult } from './explore/reach'
+import { explore } from './explore/reach'
 import { modelErrorCounterexample, traceCounterexample } from './explore/trace'
 import { fromModel } from './logic/ltl'
 import { checkLtl } from './logic/product'
 import { ModelSetupError } from './model/errors'
 import { compileInstance, type Instance } from './model/instance'
 import { compileTerm, type StateTerm } from './model/observe'
-import { canonicalizer, freePermutations, permuteState } from './symmetry/canon'
+import { canonicalizer, orbitTotal } from './symmetry/canon'
 import { decideCutoff } from './symmetry/cutoff'
 import { sha256Hex } from './record/hash'
 import type { CheckRow, CutoffInfo, Report } from './result'
@@ -129,29 +129,6 @@ function invariantBody(f: Formula): Formula | null {
   return f.k === 'always' && !temporal(f.arg) ? f.arg : null
 }
 
-/**
- * The number of states a reduced exploration stands for: each representative counts for the size
- * of its orbit, the number of permutations of the free processes divided by those that fix it.
- */
-function orbitTotal(inst: Instance, r: ExploreResult, fixed: number[]): number {
-  const W = inst.words
-  const perms = freePermutations(inst.n, fixed)
-  const data = r.store.data
-  const image = new Uint32Array(W)
-  let total = 0
-  for (let s = 0; s < r.states; s++) {
-    let stabilizer = 0
-    for (const p of perms) {
-      permuteState(inst, data, s * W, p, image)
-      let k = 0
-      while (k < W && image[k] === data[s * W + k]) k++
-      if (k === W) stabilizer++
-    }
-    total += perms.length / stabilizer
-  }
-  return total
-}
-
 function emptyCutoff(): CutoffInfo {
   return { applies: false, processes: null, statement: '', tex: '', passed: [], reasons: [] }
 }
@@ -225,7 +202,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
       row.method = 'invariant'
       row.assignment = named(prop, fixed)
       row.reducedStates = rr.states
-      row.states = orbitTotal(inst, rr, fixed)
+      row.states = orbitTotal(inst, rr.store.data, rr.states, fixed)
       row.transitions = rr.transitions
       if (!rr.complete) {
         row.note = rr.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`limit K states\``

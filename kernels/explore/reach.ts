@@ -158,9 +158,18 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
   }
 
   const seen = new TargetSet()
+  // Under reduction, the raw successors of the current source: many successor combinations (crash
+  // subsets, choices) give the same state, and a repeat maps to the same representative, so it
+  // skips the canonical form (the costly part: one image per permutation) and changes nothing.
+  const raw = canon ? new StateStore(W, 64) : null
   const emit = (succ: Uint32Array, stepped: number, receivedFrom: number): boolean => {
     let dst = succ
-    if (canon) { canon(succ, 0, rep); dst = rep }
+    if (canon) {
+      const before = raw!.size
+      if (raw!.insert(succ, 0) < before) return false
+      canon(succ, 0, rep)
+      dst = rep
+    }
     let idx = store.lookup(dst, 0)
     if (idx < 0) {
       if (store.size >= limit) {
@@ -195,6 +204,7 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
     }
     store.get(head, src, 0)
     seen.reset()
+    if (raw) raw.clear()
     if (rec) rec.beginSource(head, src)
     const err = inst.successors(src, 0, emit)
     if (err && !halted && !error) {

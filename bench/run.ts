@@ -3,6 +3,7 @@
 import { exploreCases, hashBaseline } from './explore'
 import { parseCases } from './parse'
 import { productCases } from './product'
+import { reductionCases } from './reduction'
 import { temporalCases } from './temporal'
 
 const json = process.argv.includes('--json')
@@ -13,6 +14,7 @@ const baseline = hashBaseline()
 const cases = exploreCases()
 const product = productCases(root)
 const temporal = temporalCases()
+const reduction = reductionCases()
 
 const transitionsPerSecond = (c: { transitions: number; seconds: number }) => c.transitions / c.seconds
 const best = Math.max(...cases.map(transitionsPerSecond))
@@ -23,6 +25,7 @@ const report = {
   parse,
   product,
   temporal,
+  reduction,
 }
 
 if (json) {
@@ -42,6 +45,10 @@ if (json) {
   console.log('Temporal rows against the invariant row of the same instance (goal: at most 2x; B = bytes per reachable state)')
   for (const t of temporal) {
     console.log(`  ${t.name.padEnd(48)} N=${t.processes} ${t.mode.padEnd(9)} ${f(t.states).padStart(9)} states ${f(t.productNodes).padStart(9)} product nodes  ${t.temporalSeconds.toFixed(2)} s = ${t.overInvariant.toFixed(2)}x invariant (${t.invariantSeconds.toFixed(2)} s)  product ${f(t.productNodesPerSecond)}/s vs explore ${f(t.statesPerSecond)}/s  ${t.temporalBytesPerState.toFixed(0)} B temporal, ${t.storeBytesPerState.toFixed(0)} B store`)
+  }
+  console.log('Symmetry reduction against unreduced search (goal: speedup above 1)')
+  for (const c of reduction) {
+    console.log(`  ${c.name.padEnd(48)} N=${c.processes}  ${f(c.representatives).padStart(9)} representatives for ${f(c.orbitTotal)} of ${f(c.states)} states  ${c.reducedSeconds.toFixed(2)} s against ${c.unreducedSeconds.toFixed(2)} s = ${c.speedup.toFixed(2)}x`)
   }
   const pc = parse.cases[0]
   console.log('Parse and check')

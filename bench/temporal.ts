@@ -74,7 +74,7 @@ property completeness = forall p, q: correct(p) and faulty(q) implies eventually
 property accuracy = forall p, q: correct(p) and correct(q) implies eventually always not p.suspect[q]
 \`\`\`
 \`\`\`check
-check pumps: bounded, completeness, accuracy for 3 processes
+check pumps: bounded, completeness, accuracy at N = 3
 \`\`\`
 `
 
@@ -113,8 +113,8 @@ export function temporalCases(): TemporalCase[] {
     const t2 = performance.now()
     const exploreSeconds = (t1 - t0) / 1000, productSeconds = (t2 - t1) / 1000
     const temporalSeconds = exploreSeconds + productSeconds
-    // Per-state tables of the product system: atom masks and their known flags (5 bytes a state).
-    const systemBytes = 5 * r.states
+    // Per-state table of the product system: atom masks (4 bytes a state).
+    const systemBytes = 4 * r.states
     out.push({
       name: `pumps heartbeat, synchronous, crash: ${name}`,
       processes: n,

@@ -14,7 +14,7 @@ import type { StateStore } from './stateset'
 /**
  * Fairness sets (semantics.md) as transition marks: bit i, process i steps or is crashed; then one
  * bit per channel j->i: i is crashed, or the channel is empty at the source, or i receives from it
- * in the tick; last, under stabilizing, the edge ends in a stable state.
+ * in the tick; last, under eventually synchronous, the edge ends in a stable state.
  */
 export interface FairMarks {
   fairnessSets: number
@@ -38,7 +38,7 @@ export function fairMarks(inst: Instance): FairMarks {
   // The mark of the channel with each index, so an edge reads only the channels that delivered.
   const markOfIndex = new Int32Array(Math.max(1, channels.length))
   for (const c of channels) markOfIndex[c.index] = 1 << c.bit
-  const stab = inst.protocol.timing.kind === 'stabilizing' ? isStable(inst) : null
+  const stab = inst.protocol.timing.kind === 'eventually synchronous' ? isStable(inst) : null
   const fairnessSets = n + channels.length + (stab ? 1 : 0)
   return {
     fairnessSets,
@@ -202,22 +202,22 @@ function initialIds(inst: Instance, store: StateStore): number[] {
 /**
  * The system the temporal product reads, for one assignment's compiled atoms: rows of the recorded
  * graph `g`, or, when `g` is null, rows recomputed on demand from the successor function (the same
- * edges in the same order). Atom masks are computed for the states the product reaches only.
+ * edges in the same order).
  */
 export function systemOf(inst: Instance, r: ExploreResult, g: FairGraph | null, atoms: StateTerm[]): System {
   const W = inst.words
   const store = r.store
   const data = store.data
   const states = store.size
+  // Every reachable state's atoms, computed now: an atom that faults (a division by zero) on any
+  // reachable state throws here, before the search, as the runner expects.
   const masks = new Int32Array(states)
-  const known = new Uint8Array(states)
-  const atomsOf = (s: number): number => {
-    if (known[s]) return masks[s]
+  for (let s = 0; s < states; s++) {
     let m = 0
     for (let k = 0; k < atoms.length; k++) if (atoms[k](data, s * W)) m |= 1 << k
-    known[s] = 1
-    return (masks[s] = m)
+    masks[s] = m
   }
+  const atomsOf = (s: number): number => masks[s]
   const initial = initialIds(inst, store)
   const base: Omit<System, 'successors'> = { fairnessSets: g ? g.fairnessSets : fairMarks(inst).fairnessSets, initial: () => initial, atoms: atomsOf, states }
   if (g) {

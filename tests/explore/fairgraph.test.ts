@@ -27,8 +27,8 @@ function referenceBits(inst: Instance, m: number): number {
       k++
     }
   }
-  const stabilizing = inst.protocol.timing.kind === 'stabilizing'
-  if (!stabilizing || (m >> (n + k)) & 1) out |= 1 << (n + n * n)
+  const eventuallySynchronous = inst.protocol.timing.kind === 'eventually synchronous'
+  if (!eventuallySynchronous || (m >> (n + k)) & 1) out |= 1 << (n + n * n)
   return out
 }
 

@@ -164,7 +164,7 @@ export function changesTable(cx: Counterexample): string {
   })
   const rows = cx.ticks.map((t, i) => {
     const lines: Markup[] = []
-    if (t.stabilized) lines.push(html`<div class="ev-stable">GST: the delay and idle bounds hold from here on</div>`)
+    if (t.gst) lines.push(html`<div class="ev-stable">GST: the delay and idle bounds hold from here on</div>`)
     for (const p of t.crashed) lines.push(html`<div class="ev-crash">process ${p} crashes</div>`)
     if (t.stepped.length) lines.push(html`<div class="ev-step">${t.stepped.length === 1 ? 'steps' : 'step'}: ${t.stepped.join(', ')}</div>`)
     for (const r of t.received) lines.push(html`<div class="ev-recv">${r.to} receives ${r.message} from ${r.from}</div>`)

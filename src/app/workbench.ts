@@ -6,18 +6,21 @@
 import type { NotebookModel } from '../../kernels/language/model'
 import type { CheckRow, Report } from '../../kernels/result'
 import { FormalView, ProseView, type BlockHost, type BlockView, CheckLineView } from './blocks'
-import { button, download, el, fileName } from './dom'
+import { button, el } from './dom'
+import { digest, exportMarkdown, exportRecord, exportReport, type ExportHost } from './exports'
 import { ImportRefused, decodeText, importProblems } from './import-file'
+import { Keeper } from './keeper'
 import { Kernel, StoppedError } from './kernel'
-import { renderProse } from './markdown'
-import { buildReport, type ReportCheck } from './report'
+import { Notices, type NoticeAction } from './notices'
 import { deleteBlock, insertBlock, lineStarts, moveBlock, replaceContent, segment, type Segment, type SegmentKind } from './segments'
 import { Shelf, newId, shownTitle, type StoredNotebook } from './store'
 import { ShelfPanel } from './shelf-panel'
+import { shortcutsDialog } from './shortcuts'
+import { summaryMarkup } from './summary'
+import { toFragment } from './markdown'
 import { withTitle } from './title'
 
 const ANALYZE_DELAY = 250
-const SAVE_DELAY = 500
 
 /** What one check line depends on and what it showed last. */
 interface CheckState {
@@ -31,13 +34,15 @@ interface CheckState {
   source: string
   rows: CheckRow[] | null
   fresh: boolean
+  /** Set when the user stopped the check: what did not finish. */
+  stopped: string | null
 }
 
-async function digest(s: string): Promise<string> {
-  const subtle = globalThis.crypto?.subtle
-  if (!subtle) return 'text:' + s // insecure context: key by the text itself
-  const bytes = new Uint8Array(await subtle.digest('SHA-256', new TextEncoder().encode(s)))
-  return [...bytes].map((b) => b.toString(16).padStart(2, '0')).join('')
+/** What a stopped check says about its plan: which rows did not finish. */
+function unfinishedWords(rows: CheckRow[], planned: number): string {
+  const done = rows.filter((r) => r.complete || r.verdict === 'violated').length
+  const open = planned - done
+  return `stopped by you: ${open} of ${planned} planned row${planned === 1 ? '' : 's'} did not finish and count as inconclusive`
 }
 
 /** The page. */
@@ -49,7 +54,6 @@ export class Workbench {
   private model: NotebookModel | null = null
   private modelText: string | null = null
   private analyzeTimer = 0
-  private saveTimer = 0
   private checks: CheckState[] = []
   private memo = new Map<string, CheckRow[]>()
   private running: { check: number; stop: boolean } | null = null
@@ -58,7 +62,9 @@ export class Workbench {
   private docEl = el('article', { class: 'notebook', 'aria-label': 'notebook' })
   private notesEl = el('div', { class: 'notebook-problems', role: 'alert' })
   private saveEl = el('span', { class: 'save-state', role: 'status', 'aria-live': 'polite' })
-  private noticeEl = el('div', { class: 'notices', 'aria-live': 'polite' })
+  private notices = new Notices()
+  private summaryEl = el('div', { class: 'summary-box' })
+  private keeper: Keeper
   private titleEl = el('h1', { class: 'doc-title' })
   private analysisWaiters: (() => void)[] = []
 
@@ -73,23 +79,42 @@ export class Workbench {
       imported: (file) => this.importFile(file),
       restoreGuide: () => this.addGuide(),
       notice: (m, action) => this.notice(m, action),
+      exportText: (text) => exportMarkdown(text),
+    })
+    this.keeper = new Keeper(shelf, {
+      id: () => this.id,
+      text: () => this.text,
+      adopt: (text) => this.adopt(text),
+      status: (t) => { this.saveEl.textContent = t },
+      notice: (m, a) => this.notice(m, a),
+      exportNow: () => exportMarkdown(this.text),
+      shelfChanged: () => void this.shelfPanel.refresh(),
     })
     this.layout()
   }
 
   private layout(): void {
-    const runChanged = button('check what changed', () => void this.runChanged(), { class: 'primary', 'aria-label': 'run every check whose inputs changed' })
-    const exports = el('div', { class: 'exports', role: 'group', 'aria-label': 'export' },
-      el('span', { class: 'quiet' }, 'save as'),
-      button('notebook .md', () => this.exportMarkdown(), { 'aria-label': 'export the notebook as Markdown' }),
-      button('record .json', () => void this.exportRecord(), { 'aria-label': 'export the verification record as JSON' }),
-      button('report .html', () => void this.exportReport(), { 'aria-label': 'export a self-contained HTML report' }))
+    const runChanged = button('run what changed', () => void this.runChanged(), { class: 'primary', 'aria-label': 'run every check whose inputs changed' })
+    const runAll = button('run every check', () => void this.runAll(), { 'aria-label': 'run every check in the notebook again' })
+    const closeMenu = (e: Event) => { (e.currentTarget as HTMLElement).closest('details')!.open = false }
+    const exports = el('details', { class: 'exports' },
+      el('summary', { 'aria-label': 'save the notebook, its record or a report as a file' }, 'save as…'),
+      el('div', { class: 'exports-menu', role: 'group', 'aria-label': 'export' },
+        button('notebook .md', (e) => { closeMenu(e); exportMarkdown(this.text) }, { 'aria-label': 'export the notebook as Markdown' }),
+        button('record .json', (e) => { closeMenu(e); void exportRecord(this.exportHost) }, { 'aria-label': 'export the verification record as JSON' }),
+        button('report .html', (e) => { closeMenu(e); void exportReport(this.exportHost) }, { 'aria-label': 'export a self-contained HTML report' })))
+    const keys = shortcutsDialog()
     const bar = el('header', { class: 'topbar' },
       el('div', { class: 'brand' }, 'twofold'),
       this.titleEl,
-      el('div', { class: 'actions' }, runChanged, exports, this.saveEl))
-    const main = el('main', { class: 'page' }, this.noticeEl, this.notesEl, this.docEl)
-    this.root.replaceChildren(bar, el('div', { class: 'columns' }, this.shelfPanel.root, main))
+      el('div', { class: 'actions' }, runChanged, runAll, exports, keys.opener, this.saveEl))
+    const main = el('main', { class: 'page' }, this.notices.root, this.notesEl, this.summaryEl, this.docEl)
+    this.root.replaceChildren(bar, el('div', { class: 'columns' }, this.shelfPanel.root, main), keys.dialog)
+    document.addEventListener('keydown', (e) => {
+      const t = e.target as HTMLElement
+      if (e.key === '?' && !t.closest('input, textarea, .cm-editor, [contenteditable]')) { e.preventDefault(); keys.open() }
+    })
+    this.summaryEl.addEventListener('click', (e) => this.onSummaryClick(e))
     this.docEl.addEventListener('click', (e) => this.onDocClick(e))
     this.docEl.addEventListener('mouseover', (e) => this.onHover(e))
     this.docEl.addEventListener('focusin', (e) => this.onHover(e))
@@ -114,7 +139,8 @@ export class Workbench {
     await this.shelfPanel.refresh()
   }
 
-  private load(entry: StoredNotebook): void {
+  private load(stored: StoredNotebook): void {
+    const entry = this.keeper.opened(stored)
     this.id = entry.id
     this.text = entry.text
     this.checks = []
@@ -249,22 +275,19 @@ export class Workbench {
 
   private changed(): void {
     this.scheduleAnalysis()
-    window.clearTimeout(this.saveTimer)
-    this.saveEl.textContent = 'editing…'
-    this.saveTimer = window.setTimeout(() => void this.save(), SAVE_DELAY)
+    this.keeper.changed()
   }
 
-  private async save(): Promise<void> {
-    const id = this.id
-    const text = this.text
-    try {
-      const entry = await this.shelf.save(id, text)
-      if (this.id === id && this.text === text) this.saveEl.textContent = `saved ${new Date(entry.changed).toLocaleTimeString()}`
-      await this.shelfPanel.refresh()
-    } catch (e) {
-      this.saveEl.textContent = 'not saved'
-      this.notice(`Could not save this notebook in the browser: ${(e as Error)?.message || e}. Export it as .md to keep your changes.`)
-    }
+  /** Takes in a text from elsewhere (another tab, a merge), keeping the cursor's block and place. */
+  private adopt(text: string): void {
+    const active = document.activeElement
+    const index = this.views.findIndex((v) => v.root.contains(active))
+    const view = this.views[index]
+    const at = view instanceof FormalView ? view.editor.view.state.selection.main.head : -1
+    this.text = text
+    this.rebuild()
+    const again = this.views[index]
+    if (at >= 0 && again instanceof FormalView) again.editor.jumpTo(at, false)
   }
 
   // ---- analysis and findings ---------------------------------------------------------------
@@ -341,11 +364,13 @@ export class Workbench {
       }
       const previous = this.checks.find((p) => p.source === check.source) ?? this.checks[c]
       const fresh = rows !== null
+      const stopped = !fresh && previous?.key === key ? previous.stopped : null
       if (!rows && previous?.rows) rows = previous.rows
-      next.push({ inputs, key, deps, source: check.source, rows, fresh })
+      next.push({ inputs, key, deps, source: check.source, rows, fresh, stopped })
     }
     if (text !== this.text) return
     this.checks = next
+    this.showSummary()
     // Lay out check lines under their blocks.
     this.views.forEach((v, i) => {
       if (!(v instanceof FormalView) || !v.checksBox) return
@@ -362,7 +387,7 @@ export class Workbench {
       }
       for (const l of v.checkLines) {
         const s = next[l.check]
-        if (this.running?.check !== l.check) l.show(s.rows, s.fresh)
+        if (this.running?.check !== l.check) l.show(s.rows, s.fresh, s.stopped)
         l.setRunnable(!errors && !this.running, errors ? 'fix the errors in the notebook first' : 'another check is running')
       }
     })
@@ -374,12 +399,37 @@ export class Workbench {
     if (view instanceof FormalView && view.checkLines.length) void this.runChecks(view.checkLines.map((l) => l.check))
   }
 
-  /** Runs every check whose findings are missing or out of date. */
-  async runChanged(): Promise<void> {
+  /** Runs every check whose findings are missing or out of date (quietly when there are none: exports call it). */
+  async runChanged(quiet = false): Promise<void> {
     await this.analysis()
     const todo = this.checks.map((c, i) => (c.fresh ? -1 : i)).filter((i) => i >= 0)
-    if (!todo.length) { this.notice('Every check is up to date.'); return }
+    if (!todo.length) { if (!quiet) this.notice('Every check is up to date.'); return }
     await this.runChecks(todo)
+  }
+
+  /** Runs every check again, up to date or not. */
+  async runAll(): Promise<void> {
+    await this.analysis()
+    await this.runChecks(this.checks.map((_, i) => i))
+  }
+
+  /** The summary at the top: the tally of every row shown, links to the rows that do not hold. */
+  private showSummary(): void {
+    const markup = summaryMarkup(this.checks.map((c, i) => ({ check: i, source: c.source, rows: c.rows, fresh: c.fresh, stopped: c.stopped !== null })))
+    this.summaryEl.replaceChildren(toFragment(markup))
+  }
+
+  private onSummaryClick(e: MouseEvent): void {
+    const a = (e.target as HTMLElement).closest<HTMLAnchorElement>('a.to-row')
+    if (!a) return
+    e.preventDefault()
+    const target = (a.dataset.row ? document.getElementById(`row-${a.dataset.row}`) : null) ?? document.getElementById(`check-${a.dataset.check}`)
+    if (!target) return
+    target.scrollIntoView({ block: 'center' })
+    const focusable = target.closest('.check-line')?.querySelector<HTMLElement>('button.run') ?? null
+    target.tabIndex = -1
+    target.focus({ preventScroll: true })
+    if (!focusable) return
   }
 
   private async runChecks(list: number[]): Promise<void> {
@@ -398,37 +448,44 @@ export class Workbench {
         const line = this.lineView(c)
         line?.running(true, 'planning…')
         const rows: CheckRow[] = []
+        let planned = 0
         try {
           const plan = await this.kernel.plan(text, c)
+          planned = plan.length
           for (let r = 0; r < plan.length && !this.running.stop; r++) {
             rows.push(await this.kernel.run(text, plan[r], (p) => this.lineView(c)?.progress(p, r, plan.length)))
           }
         } catch (e) {
           this.lineView(c)?.running(false)
-          if (e instanceof StoppedError) this.lineView(c)?.note('stopped; nothing kept from the unfinished row')
-          else this.lineView(c)?.note(`the kernel failed: ${(e as Error)?.message ?? e}`)
-          if (e instanceof StoppedError) break
-          continue
+          if (!(e instanceof StoppedError)) { this.lineView(c)?.note(`the kernel failed: ${(e as Error)?.message ?? e}`); continue }
+          if (!rows.length) { this.lineView(c)?.note('stopped before any row finished: inconclusive'); break }
         }
         const stopped = this.running.stop
         this.lineView(c)?.running(false)
-        if (stopped && !rows.length) { this.lineView(c)?.note('stopped'); break }
-        const key = states[c].key
-        // A stopped check is shown but not cached: it did not finish its plan.
-        if (!stopped) {
-          this.memo.set(key, rows)
-          this.shelf.putResult(key, rows).catch((e) => this.notice(`Could not keep the findings in the browser: ${(e as Error)?.message ?? e}`))
-        }
-        const now = this.checks[c]
-        if (now && now.key === key) { now.rows = rows; now.fresh = !stopped; this.lineView(c)?.show(rows, !stopped) }
-        else if (now) { now.rows = rows; now.fresh = false; this.lineView(c)?.show(rows, false) }
-        if (stopped) this.lineView(c)?.note('stopped: the rows shown are what finished')
+        if (stopped && !rows.length) { this.lineView(c)?.note('stopped before any row finished: inconclusive'); break }
+        this.finished(c, states[c].key, rows, stopped ? unfinishedWords(rows, planned) : null)
       }
     } finally {
       this.running = null
       this.setAllRunnable(true)
       if (this.text !== text) this.scheduleAnalysis(0)
     }
+  }
+
+  /** Shows and keeps the rows of a check that ran (a stopped check is shown, not cached). */
+  private finished(c: number, key: string, rows: CheckRow[], stopped: string | null): void {
+    if (!stopped) {
+      this.memo.set(key, rows)
+      this.shelf.putResult(key, rows).catch((e) => this.notice(`Could not keep the findings in the browser: ${(e as Error)?.message ?? e}`))
+    }
+    const now = this.checks[c]
+    if (!now) return
+    const same = now.key === key
+    now.rows = rows
+    now.fresh = same && !stopped
+    now.stopped = same ? stopped : null
+    this.lineView(c)?.show(rows, now.fresh, now.stopped)
+    this.showSummary()
   }
 
   private setAllRunnable(on: boolean): void {
@@ -464,20 +521,11 @@ export class Workbench {
     if (tick !== null) for (const n of witness.querySelectorAll(`[data-tick="${CSS.escape(tick)}"]`)) n.classList.add('lit')
   }
 
-  private notice(message: string, action?: { label: string; run: () => void }): void {
-    const close = button('dismiss', () => item.remove(), { class: 'dismiss', 'aria-label': 'dismiss this message' })
-    const item = el('div', { class: 'notice', role: 'status' }, el('span', {}, message))
-    if (action) item.append(button(action.label, () => { item.remove(); action.run() }, { class: 'undo' }))
-    item.append(close)
-    this.noticeEl.append(item)
-    window.setTimeout(() => item.remove(), action ? 15_000 : 12_000)
-  }
+  private notice(message: string, action?: NoticeAction): void { this.notices.show(message, action) }
 
   // ---- notebooks -------------------------------------------------------------------------
 
-  private async flushSave(): Promise<void> {
-    if (this.saveTimer) { window.clearTimeout(this.saveTimer); this.saveTimer = 0; await this.save() }
-  }
+  private flushSave(): Promise<void> { return this.keeper.flush() }
 
   async openNotebook(id: string): Promise<void> {
     await this.flushSave()
@@ -507,20 +555,27 @@ export class Workbench {
 
   private async afterDelete(entry: StoredNotebook): Promise<void> {
     if (entry.id === this.id) {
-      const list = await this.shelf.list()
+      // The deleted notebook stays stored through its undo window: never reopen it here.
+      const list = (await this.shelf.list()).filter((n) => n.id !== entry.id)
       if (list.length) await this.openNotebook(list[0].id)
       else await this.newNotebook(this.guide)
     }
   }
 
-  private async newNotebook(text = '---\ntitle: Untitled notebook\n---\n\n# Untitled notebook\n\n'): Promise<void> {
-    await this.flushSave()
+  // No front matter: the title follows the first heading until the notebook is renamed.
+  private async newNotebook(text = '# Untitled notebook\n\nWrite what the protocol is for here.\n\n'): Promise<void> {
     try {
-      const entry = await this.shelf.save(newId(), text)
-      await this.openNotebook(entry.id)
+      await this.createNotebook(text)
     } catch (e) {
       this.notice(`Could not create a notebook in this browser: ${(e as Error)?.message ?? e}`)
     }
+  }
+
+  /** Stores a new notebook and opens it; rejects when the browser refuses to store it. */
+  private async createNotebook(text: string): Promise<void> {
+    await this.flushSave()
+    const entry = await this.shelf.save(newId(), text)
+    await this.openNotebook(entry.id)
   }
 
   private async addGuide(): Promise<void> { await this.newNotebook(this.guide) }
@@ -531,11 +586,11 @@ export class Workbench {
       const text = decodeText(new Uint8Array(await file.arrayBuffer()))
       const problems = importProblems(await this.kernel.analyze(text))
       if (problems.length) throw new ImportRefused(problems)
-      await this.newNotebook(text)
+      await this.createNotebook(text)
       this.notice(`Imported ${file.name}.`)
       return true
     } catch (e) {
-      const reasons = e instanceof ImportRefused ? e.reasons : [String((e as Error)?.message ?? e)]
+      const reasons = e instanceof ImportRefused ? e.reasons : [`this browser refused to store it (${(e as Error)?.message ?? e})`]
       const shown = reasons.slice(0, 3).join('; ') + (reasons.length > 3 ? `; and ${reasons.length - 3} more` : '')
       this.notice(`Nothing was imported from ${file.name}: ${shown}.`)
       return false
@@ -544,51 +599,16 @@ export class Workbench {
 
   // ---- exports ---------------------------------------------------------------------------
 
-  private exportMarkdown(): void {
-    download(fileName(shownTitle(this.text), '.md'), 'text/markdown;charset=utf-8', this.text)
-  }
-
-  /** The Report of the findings shown now (fresh rows only), in plan order. */
-  private async report(model: NotebookModel): Promise<Report> {
-    const plan = await this.kernel.plan(this.text)
-    const checks: CheckRow[] = []
-    this.checks.forEach((s, c) => {
-      if (!s.fresh || !s.rows) return
-      const mine = plan.filter((p) => p.check === c)
-      s.rows.forEach((r, k) => checks.push({ ...r, check: c, row: mine[k]?.row ?? r.row }))
-    })
+  private get exportHost(): ExportHost {
     return {
-      notebook: { path: fileName(shownTitle(this.text), '.md'), sha256: await digest(this.text) },
-      errors: model.diagnostics.filter((d) => d.severity === 'error').map((d) => ({ line: d.line, column: d.column, message: d.message })),
-      checks,
+      text: () => this.text,
+      segments: () => this.segs,
+      segmentAt: (o) => this.segmentAt(o),
+      checks: () => this.checks,
+      kernel: this.kernel,
+      analysis: () => this.analysis(),
+      runChanged: () => this.runChanged(true),
+      notice: (m) => this.notice(m),
     }
-  }
-
-  private async exportRecord(): Promise<void> {
-    await this.runChanged()
-    const model = await this.analysis()
-    if (this.checks.some((c) => !c.fresh)) { this.notice('Some checks did not finish, so no record was made.'); return }
-    const report = await this.report(model)
-    const { buildRecord } = await import('../../kernels/record/record')
-    const { canonicalJsonPretty } = await import('../../kernels/record/canonical')
-    const record = await buildRecord(report, this.text, model)
-    download(fileName(shownTitle(this.text), '.record.json'), 'application/json', canonicalJsonPretty(record) + '\n')
-  }
-
-  private async exportReport(): Promise<void> {
-    const model = await this.analysis()
-    const byBlock = new Map<number, ReportCheck[]>()
-    model.checks.forEach((c, k) => {
-      const i = this.segmentAt(c.block.from)
-      const list = byBlock.get(i) ?? []
-      const s = this.checks[k]
-      list.push({ source: c.source, rows: s?.rows ?? null, fresh: s?.fresh ?? false })
-      byBlock.set(i, list)
-    })
-    const html = buildReport({
-      title: shownTitle(this.text), text: this.text, segments: this.segs, checks: byBlock,
-      prose: (src) => renderProse(src, true), sha256: await digest(this.text), created: new Date(),
-    })
-    download(fileName(shownTitle(this.text), '.report.html'), 'text/html;charset=utf-8', html)
   }
 }

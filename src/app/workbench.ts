@@ -532,7 +532,8 @@ export class Workbench {
     try {
       const entry = await this.shelf.load(id)
       if (!entry) { this.notice('That notebook is no longer kept in this browser.'); return }
-      await this.shelf.setOpenId(id)
+      // Which notebook is open is a convenience for the next visit; a refused write must not stop the opening.
+      await this.shelf.setOpenId(id).catch(() => undefined)
       this.load(entry)
       await this.shelfPanel.refresh()
     } catch (e) {

@@ -52,7 +52,8 @@ export interface DiagramOptions {
 
 /** An atom's text with the property's variables replaced by their processes ("alive(q)" with q = 2 reads "alive(2)"). */
 export function filledIn(text: string, assignment: Record<string, number> = {}): string {
-  let out = text
+  // The kernel writes fixed processes as `#n`; the page calls them by number, as the lanes do.
+  let out = text.replace(/#(\d+)/g, '$1')
   for (const [v, n] of Object.entries(assignment)) out = out.replace(new RegExp(`\\b${v}\\b`, 'g'), String(n))
   return out
 }
@@ -89,7 +90,7 @@ export function counterexampleSvg(cx: Counterexample, processes: number, opts: D
   const tickY = (i: number) => stateY(i) + ROW / 2 // between state i and state i+1
   const atomsX = LEFT + processes * LANE + 10
   const legendY = TOP + states * ROW + 24
-  const width = Math.max(atomsX + atoms.length * ATOM_COL + 20, LEFT + 430)
+  const width = Math.max(atomsX + atoms.length * ATOM_COL + 20, LEFT + 470)
   const height = legendY + 22 + atoms.length * 18 + 10
   const crashTick = new Map<number, number>()
   cx.ticks.forEach((t, i) => t.crashed.forEach((p) => { if (!crashTick.has(p)) crashTick.set(p, i) }))
@@ -163,9 +164,10 @@ export function counterexampleSvg(cx: Counterexample, processes: number, opts: D
   }
   // A key for every line style the diagram uses.
   const key: [string, string][] = [['msg', 'received'], ['msg msg-open', 'in flight'], ['msg msg-dropped', 'dropped at a crashed process'], ['lane-dead', 'after a crash']]
-  key.forEach(([cls, words], k) => {
-    const x = LEFT + k * 105
+  let x = LEFT - 60
+  key.forEach(([cls, words]) => {
     parts.push(html`<g class="line-key"><line class="${cls}" x1="${x}" y1="${legendY - 4}" x2="${x + 22}" y2="${legendY - 4}" /><text class="legend" x="${x + 27}" y="${legendY}">${words}</text></g>`)
+    x += 27 + words.length * 6 + 14
   })
   atoms.forEach((a, col) => {
     const x = atomsX + col * ATOM_COL

@@ -86,7 +86,8 @@ const theme = EditorView.theme({
  * opens a brace, and a line that starts with a closing brace dedents. Simple and predictable.
  */
 const braceIndent = indentService.of((context, pos) => {
-  const line = context.lineAt(pos, -1)
+  // The line being indented (after a simulated break, the part after it), and the line above it.
+  const line = context.lineAt(pos, 1)
   if (line.from === 0) return 0
   const above = context.lineAt(line.from - 1, -1)
   const base = /^\s*/.exec(above.text)![0].replace(/\t/g, '  ').length

@@ -189,3 +189,51 @@ describe('formulas', () => {
     await close()
   })
 })
+
+describe('the counterexample diagram', () => {
+  it('keeps message labels apart, keys every line style, and lines tick labels up with their dots', async () => {
+    // The guide's violated check has a lasso with messages crossing between the two lanes.
+    const { context, page } = await openPage(bench)
+    const close = () => context.close()
+    await runAll(page)
+    const svg = page.locator('.witness svg').first()
+    // Real font metrics: no two message labels' boxes intersect.
+    const overlaps = await svg.evaluate((s) => {
+      const boxes = [...s.querySelectorAll<SVGTextElement>('.msg-label')].map((t) => t.getBBox())
+      let n = 0
+      for (let i = 0; i < boxes.length; i++) for (let j = i + 1; j < boxes.length; j++) {
+        const a = boxes[i], b = boxes[j]
+        if (a.x < b.x + b.width && b.x < a.x + a.width && a.y < b.y + b.height && b.y < a.y + a.height) n++
+      }
+      return { n, labels: boxes.length }
+    })
+    expect(overlaps.labels).toBeGreaterThan(1)
+    expect(overlaps.n).toBe(0)
+    const keys = await svg.locator('.line-key text').allTextContents()
+    expect(keys).toEqual(['received', 'in flight', 'dropped at a crashed process', 'after a crash'])
+    // Every line style drawn has its key entry.
+    const styles = await svg.evaluate((s) => [...new Set([...s.querySelectorAll('line.msg')].map((l) => l.getAttribute('class')))])
+    for (const st of styles) expect(await svg.locator(`.line-key line[class="${st}"]`).count()).toBe(1)
+    // "tick t" labels sit on the row of that tick's dots.
+    const aligned = await svg.evaluate((s) => {
+      const labels = [...s.querySelectorAll<SVGTextElement>('.state-label')].filter((t) => t.textContent!.startsWith('tick'))
+      const dots = [...s.querySelectorAll<SVGCircleElement>('circle.step')]
+      return labels.every((t) => {
+        const tick = t.textContent!.slice(5)
+        const mine = dots.filter((d) => d.querySelector('title')!.textContent!.endsWith(`in tick ${tick}`))
+        const mid = t.getBBox().y + t.getBBox().height / 2
+        return mine.every((d) => Math.abs(Number(d.getAttribute('cy')) - mid) < 6)
+      })
+    })
+    expect(aligned).toBe(true)
+    // The tick table says who steps in words, and the atom legend names processes, not variables.
+    expect(await page.locator('.witness table.ticks').first().textContent()).toMatch(/processes 1 and 2 step|process [12] steps/)
+    expect(await page.locator('.witness table.ticks').first().textContent()).not.toMatch(/steps?: \d/)
+    const legend = await svg.locator('text.legend').allTextContents()
+    const atoms = legend.filter((t) => /^a\d+:/.test(t))
+    expect(atoms.length).toBeGreaterThan(0)
+    for (const a of atoms) expect(a).not.toMatch(/[(,[]\s*[pq]\b|\b[pq]\.|#/)
+    await page.locator('.witness').first().screenshot({ path: join(ARTIFACTS, 'diagram-labels.png') })
+    await close()
+  })
+})

@@ -167,3 +167,16 @@ export function moveBlock(text: string, index: number, direction: -1 | 1): strin
   const pad = (s: string) => (s.endsWith('\n\n') ? s : withNewline(s) + '\n')
   return text.slice(0, a.from) + pad(text.slice(b.from, b.to)) + pad(text.slice(a.from, a.to)) + text.slice(b.to)
 }
+
+/** The 1-based line number of an offset in `text`. */
+export function lineAt(text: string, offset: number): number {
+  const starts = lineStarts(text)
+  let lo = 0
+  let hi = starts.length - 1
+  while (lo < hi) {
+    const mid = (lo + hi + 1) >> 1
+    if (starts[mid] <= offset) lo = mid
+    else hi = mid - 1
+  }
+  return lo + 1
+}

@@ -7,7 +7,7 @@ import type { Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { runNotebook } from '../../kernels/api'
 import { CAUTION } from '../../src/app/results'
-import { ARTIFACTS, importText, openPage, startWorkbench, type Workbench } from './harness'
+import { ARTIFACTS, ROOT, importText, openPage, startWorkbench, type Workbench } from './harness'
 
 let bench: Workbench
 beforeAll(async () => { bench = await startWorkbench() })
@@ -113,6 +113,26 @@ describe('verdicts at a glance', () => {
     expect(html.match(/>Harbour cranes</g)).toHaveLength(2) // <title> and <h1>
     expect(CAUTION).toContain('For systems where failure can hurt people')
     await close()
+  })
+})
+
+describe('the guide', () => {
+  it('explains each violated result it shows, in the text right after its check block', async () => {
+    const guide = readFileSync(join(ROOT, 'notebooks/guide.md'), 'utf8')
+    const violated = (await runNotebook(guide, 'notebooks/guide.md', {})).checks.filter((r) => r.verdict === 'violated')
+    expect(violated.length).toBeGreaterThan(0)
+    const { context, page } = await openPage(bench)
+    await runAll(page)
+    const explained = await page.evaluate(() => [...document.querySelectorAll('.block-check')].map((b) => ({
+      violated: [...b.querySelectorAll('th[scope="col"]')].map((th) => th.textContent!).filter((_, i) => b.querySelectorAll('td.verdict')[i]?.classList.contains('v-violated')),
+      next: b.nextElementSibling?.classList.contains('block-prose') ? b.nextElementSibling.textContent ?? '' : '',
+    })))
+    for (const r of violated) {
+      const block = explained.find((e) => e.next.includes(r.property) && e.violated.length)
+      expect(block, `the guide explains why ${r.property} is violated`).toBeTruthy()
+      expect(block!.next).toMatch(new RegExp(`${r.property}\\W[^.]*violated`))
+    }
+    await context.close()
   })
 })
 

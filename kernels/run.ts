@@ -2,63 +2,38 @@
 // runs each row with the kernel: the class check decides the cutoff, the instance is compiled and
 // explored, invariants are checked during the search and temporal properties on the product
 // with the automaton of their negation under the fairness of semantics.md.
-import type { RowPlan, RunOptions } from './api'
+import { planOf, type RowPlan, type RunOptions } from './plan'
+// The plan lives in plan.ts; tests and tools written against run.ts still import it from here.
+export { planRows } from './plan'
 import { analyzeNotebook } from './language/analyze'
+import { instantiatedText } from './language/instantiate'
 import type { CheckModel, Formula, NotebookModel, PropertyModel, ProtocolModel, Term } from './language/model'
 import { explore, type ExploreResult } from './explore/reach'
 import { modelErrorCounterexample, traceCounterexample } from './explore/trace'
 import { fromModel } from './logic/ltl'
 import { Int32Buffer } from './logic/buffer'
 import { checkLtl, type System } from './logic/product'
-import { ModelSetupError } from './model/errors'
+import { MAX_TEMPORAL_PROCESSES } from './language/limits'
+import { ModelSetupError, PropertyFault } from './model/errors'
 import { compileInstance, type Instance } from './model/instance'
 import { channelEmpty, compileTerm, isCrashed, isStable, type StateTerm } from './model/observe'
 import { canonicalizer, freePermutations, permuteState } from './symmetry/canon'
 import { decideCutoff } from './symmetry/cutoff'
+import { RULE_NAMES } from './symmetry/rules'
 import { sha256Hex } from './record/hash'
-import type { CheckRow, CutoffInfo, Report } from './result'
+import type { CheckRow, CutoffInfo, Report, Verdict } from './result'
 
-/** States explored before a check without `limit` gives up as inconclusive (memory guard). */
+/** States explored before a check without `within K states` gives up as inconclusive (memory guard). */
 export const DEFAULT_LIMIT = 4_000_000
 
-/** Every constant setting of a check: the cartesian product of its sweep, in sweep order. */
-function settings(protocol: ProtocolModel, check: CheckModel): number[][] {
-  let out: number[][] = [protocol.consts.map((c) => c.value)]
-  for (const item of check.sweep) {
-    const next: number[][] = []
-    for (const base of out) {
-      for (const v of item.values) {
-        const s = base.slice()
-        s[item.constIndex] = v
-        next.push(s)
-      }
-    }
-    out = next
+/** Does the term divide (`/` or `%`) anywhere? */
+function divides(t: Term): boolean {
+  switch (t.k) {
+    case 'bin': return t.op === '/' || t.op === '%' || divides(t.left) || divides(t.right)
+    case 'min': case 'max': return divides(t.left) || divides(t.right)
+    case 'neg': return divides(t.arg)
+    default: return false
   }
-  return out
-}
-
-/**
- * The deterministic plan of a notebook's rows: checks in notebook order, then properties in the
- * order listed, then sizes, then constant settings. `only` keeps the rows whose property or
- * protocol has that name; `shard` keeps rows whose index is congruent to index-1 modulo count.
- */
-export function planRows(model: NotebookModel, opts: RunOptions = {}): RowPlan[] {
-  const plan: RowPlan[] = []
-  model.checks.forEach((check, c) => {
-    const protocol = model.protocols[check.protocol]
-    check.properties.forEach((prop, p) => {
-      if (opts.only !== undefined && opts.only !== prop.name && opts.only !== protocol.name) return
-      for (const processes of check.sizes ?? [null]) {
-        for (const constants of settings(protocol, check)) {
-          plan.push({ row: plan.length, check: c, property: p, processes, constants })
-        }
-      }
-    })
-  })
-  if (!opts.shard) return plan
-  const { index, count } = opts.shard
-  return plan.filter((r) => r.row % count === index - 1)
 }
 
 /** Does the formula contain a temporal operator? */
@@ -117,7 +92,7 @@ function atomBands(inst: Instance, data: Uint32Array, path: number[], prop: Prop
   const W = inst.words
   return terms.map((t) => {
     const f = compileTerm(inst, t, a)
-    return { text: sourceOf(prop, t.span), values: path.map((s) => f(data, s * W) !== 0) }
+    return { text: instantiatedText(prop, t, t.span, a), values: path.map((s) => f(data, s * W) !== 0) }
   })
 }
 
@@ -146,7 +121,7 @@ export interface FairGraph {
 /**
  * Fairness sets (semantics.md) as transition marks: bit i, process i steps or is crashed; then one
  * bit per channel j->i: i is crashed, or the channel is empty at the source, or i receives from it
- * in the tick; last, under stabilizing, the edge ends in a stable state.
+ * in the tick; last, under eventually synchronous, the edge ends in a stable state.
  */
 export interface FairMarks {
   fairnessSets: number
@@ -166,7 +141,7 @@ export function fairMarks(inst: Instance): FairMarks {
       if (i !== j) channels.push({ i, bit: n + channels.length, index: j * (n - 1) + (i < j ? i : i - 1), test: channelEmpty(inst, j, i) })
     }
   }
-  const stab = inst.protocol.timing.kind === 'stabilizing' ? isStable(inst) : null
+  const stab = inst.protocol.timing.kind === 'eventually synchronous' ? isStable(inst) : null
   const fairnessSets = n + channels.length + (stab ? 1 : 0)
   return {
     fairnessSets,
@@ -309,8 +284,40 @@ function emptyCutoff(): CutoffInfo {
   return { applies: false, processes: null, statement: '', tex: '', passed: [], reasons: [] }
 }
 
-/** Runs one planned row. Never throws: a failure becomes verdict `error` with a note. */
-export function runRow(model: NotebookModel, plan: RowPlan, opts: RunOptions = {}): CheckRow {
+/**
+ * Verdicts of cutoff instances G_k already explored in one run, keyed by check, property and
+ * constants, so that every explicit size of that key compares with G_k without exploring it again.
+ */
+export type CutoffVerdicts = Map<string, Verdict>
+
+/**
+ * Runs one planned row. Never throws: a failure becomes verdict `error` with a note. A row with an
+ * explicit size n at or above the cutoff k (where the cutoff applies) is also compared with the
+ * cutoff instance G_k, explored here unless `cutoffVerdicts` already holds it: `agreement` is
+ * therefore a property of the row alone, the same whether or not the run is sharded.
+ */
+export function runRow(model: NotebookModel, plan: RowPlan, opts: RunOptions = {}, cutoffVerdicts: CutoffVerdicts = new Map()): CheckRow {
+  const row = runPlainRow(model, plan, opts)
+  const k = row.cutoff.processes
+  if (!row.cutoff.applies || k === null || row.processes < k) return row
+  const key = `${plan.check}|${plan.property}|${plan.constants.join(',')}`
+  if (row.processes === k) cutoffVerdicts.set(key, row.verdict)
+  if (plan.processes === null || (row.verdict !== 'holds' && row.verdict !== 'violated')) return row
+  let atCutoff = cutoffVerdicts.get(key)
+  if (atCutoff === undefined) {
+    atCutoff = runPlainRow(model, { ...plan, processes: k }, { shouldStop: opts.shouldStop }).verdict
+    cutoffVerdicts.set(key, atCutoff)
+  }
+  if (atCutoff !== 'holds' && atCutoff !== 'violated') return row
+  row.agreement = atCutoff === row.verdict
+  if (!row.agreement) {
+    const said = `sizes disagree: G_${row.processes} ${row.verdict === 'holds' ? 'holds' : 'is violated'} but the cutoff instance G_${k} ${atCutoff === 'holds' ? 'holds' : 'is violated'}; the cutoff claim is contradicted; please report this notebook`
+    row.note = row.note ? `${said}. ${row.note}` : said
+  }
+  return row
+}
+
+function runPlainRow(model: NotebookModel, plan: RowPlan, opts: RunOptions): CheckRow {
   const t0 = performance.now()
   const check = model.checks[plan.check]
   const protocol = model.protocols[check.protocol]
@@ -321,7 +328,7 @@ export function runRow(model: NotebookModel, plan: RowPlan, opts: RunOptions = {
   try {
     cutoff = decideCutoff(protocol, prop)
   } catch (e) {
-    cutoff = { ...emptyCutoff(), reasons: [{ rule: 0, line: prop.span.line, column: prop.span.column, message: `the class check failed internally (${(e as Error).message})` }] }
+    cutoff = { ...emptyCutoff(), reasons: [{ rule: 0, name: RULE_NAMES[0], line: prop.span.line, column: prop.span.column, message: `the class check failed internally (${(e as Error).message})` }] }
   }
   const row: CheckRow = {
     row: plan.row, check: plan.check, protocol: protocol.name, property: prop.name,
@@ -331,7 +338,11 @@ export function runRow(model: NotebookModel, plan: RowPlan, opts: RunOptions = {
   }
   const finish = (): CheckRow => { row.seconds = (performance.now() - t0) / 1000; return row }
   if (plan.processes === null && !cutoff.applies) {
-    row.note = 'the cutoff does not apply to this protocol and property (see the reasons); give explicit sizes with `for N processes`'
+    row.note = 'the cutoff does not apply to this protocol and property (see the reasons); give explicit sizes with `at N = K`'
+    return finish()
+  }
+  if (check.method === 'induction') {
+    row.note = 'proof by induction (`by induction`) is not available in this build, so nothing was proved; check the property without `by induction` to explore it'
     return finish()
   }
   const n = row.processes
@@ -360,9 +371,16 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
         opts.onProgress!({ check: row.check, property: prop.name, processes: n, ...p })
     : undefined
   const inv = invariantBody(prop.formula)
+  if (!inv && n > MAX_TEMPORAL_PROCESSES) {
+    throw new ModelSetupError(`temporal properties are checked on at most ${MAX_TEMPORAL_PROCESSES} processes (their fairness conditions must fit the temporal product's 31 marks), not ${n} (line ${prop.span.line}, column ${prop.span.column})`, prop.span)
+  }
   const predicates = inv ? chosen.map((a) => statePredicate(inv, (t) => compileTerm(inst, t, a))) : []
+  // A division in the property is evaluated in every atom on every state, whatever the connectives
+  // around it, so that a division by zero is a model error (as in protocols) however it is guarded.
+  const dividing = inv && terms.some(divides) ? chosen.map((a) => terms.map((t) => compileTerm(inst, t, a))) : null
   let failed = -1
   const invariant = inv ? (w: Uint32Array, o: number) => {
+    if (dividing) for (const atoms of dividing) for (const t of atoms) t(w, o)
     for (let k = 0; k < predicates.length; k++) if (!predicates[k](w, o)) { failed = k; return false }
     return true
   } : undefined
@@ -370,7 +388,8 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   // property names stay fixed and the others are interchangeable (the class check granted it, and
   // a protocol cannot tell processes apart). Temporal properties are checked unreduced, because
   // the fairness sets name processes and a quotient would mix them.
-  const reduce = inv !== null && cutoff.applies && cutoff.processes !== null && n - cutoff.processes >= 2
+  // Permutations are enumerated per state, so only up to 5 free processes (120 permutations).
+  const reduce = inv !== null && cutoff.applies && cutoff.processes !== null && n - cutoff.processes >= 2 && n - chosen[0].length <= 5
   if (reduce) {
     const fixed = chosen[0]
     const rr = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: progress, invariant, canonicalize: canonicalizer(inst, fixed) })
@@ -381,7 +400,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
       row.states = orbitTotal(inst, rr, fixed)
       row.transitions = rr.transitions
       if (!rr.complete) {
-        row.note = rr.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`limit K states\``
+        row.note = rr.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`within K states\``
         return row
       }
       row.verdict = 'holds'
@@ -418,7 +437,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
     return row
   }
   if (!r.complete) {
-    row.note = r.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`limit K states\``
+    row.note = r.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`within K states\``
     return row
   }
   if (inv) {
@@ -435,7 +454,20 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   }
   for (const a of chosen) {
     const compiled = terms.map((t) => compileTerm(inst, t, a))
-    const sys = systemOf(inst, r, graph, compiled)
+    let sys: System
+    try {
+      sys = systemOf(inst, r, graph, compiled)
+    } catch (e) {
+      if (!(e instanceof PropertyFault)) throw e
+      // An atom divides by zero on a reachable state: find the shortest trace to such a state.
+      const again = explore(inst, { limit, shouldStop: opts.shouldStop, invariant: (w, o) => { for (const t of compiled) t(w, o); return true } })
+      if (!again.error || !again.trace) throw e
+      row.verdict = 'violated'
+      row.complete = false
+      row.assignment = named(prop, a)
+      row.counterexample = modelErrorCounterexample(inst, again.store, again.trace, again.error)
+      return row
+    }
     const ltl = fromModel(prop.formula, (t) => terms.indexOf(t))
     let stoppedByLimit = false
     const v = checkLtl(sys, ltl, {
@@ -474,33 +506,15 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   return row
 }
 
-/**
- * Marks, for checks with explicit sizes where the cutoff applies, whether the sizes at or above
- * the cutoff agree. A disagreement is a soundness alarm: the theorem says they cannot differ.
- */
-export function markAgreement(rows: CheckRow[]): CheckRow[] {
-  const groups = new Map<string, CheckRow[]>()
-  for (const r of rows) {
-    if (!r.cutoff.applies || r.cutoff.processes === null || r.processes < r.cutoff.processes) continue
-    if (r.verdict !== 'holds' && r.verdict !== 'violated') continue
-    const key = `${r.check}|${r.property}|${JSON.stringify(r.constants)}`
-    groups.set(key, [...(groups.get(key) ?? []), r])
-  }
-  for (const g of groups.values()) {
-    if (g.length < 2) continue
-    const agree = g.every((r) => r.verdict === g[0].verdict)
-    for (const r of g) r.agreement = agree
-  }
-  return rows
-}
-
 /** Runs every planned row of a notebook: the `--json` document of records.md. */
 export async function runNotebook(text: string, path: string, opts: RunOptions = {}): Promise<Report> {
   const model = analyzeNotebook(text)
   const sha256 = await sha256Hex(text)
   const errors = model.diagnostics.filter((d) => d.severity === 'error').map((d) => ({ line: d.line, column: d.column, message: d.message }))
   if (errors.length > 0) return { notebook: { path, sha256 }, errors, checks: [] }
-  const rows = planRows(model, opts).map((plan) => runRow(model, plan, opts))
-  return { notebook: { path, sha256 }, errors, checks: markAgreement(rows) }
+  const cutoffVerdicts: CutoffVerdicts = new Map()
+  const checks: CheckRow[] = []
+  for (const plan of planOf(model, opts.only).select(opts.shard)) checks.push(runRow(model, plan, opts, cutoffVerdicts))
+  return { notebook: { path, sha256 }, errors, checks }
 }
 

@@ -223,7 +223,7 @@ export class CheckLineView {
         else chosen.delete(i)
         diagram.replaceChildren(toFragment(counterexampleSvg(cx, row.processes, { atoms: [...chosen], assignment: row.assignment })))
       })
-      return el('label', { class: 'atom-choice' }, box, el('span', { class: 'swatch', style: `background:${atomColour(i)}` }), `a${i + 1}: ${filledIn(a.text, row.assignment)}`)
+      return el('label', { class: 'atom-choice' }, box, el('span', { class: 'swatch', style: `background:${atomColour(i)}` }), filledIn(a.text, row.assignment))
     })
     return el('fieldset', { class: 'atom-chooser' }, el('legend', {}, 'shade where these hold'), ...boxes)
   }

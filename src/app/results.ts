@@ -6,6 +6,7 @@ import type { CheckRow, CutoffInfo } from '../../kernels/result'
 import { changesTable, counterexampleSvg } from './diagram'
 import { html, raw, type Markup } from './html'
 import { texToHtml } from './tex'
+import { ruleLabel } from '../../kernels/symmetry/rules'
 
 /** Options for rendering findings. */
 export interface FindingsOptions {
@@ -126,8 +127,7 @@ export function cutoffMarkup(c: CutoffInfo, opts: FindingsOptions = {}): Markup 
   // The advice to give sizes is said once, where it applies (the not-run line), never under rows that have sizes.
   const statement = c.statement.replace(/;?\s*give explicit sizes.*$/s, '')
   const reason = (r: CutoffInfo['reasons'][number]) => {
-    const name = (r as { name?: string }).name
-    return html`<li>${name ? html`<span class="rule-name">${name}</span> ` : null}<span class="rule">(rule ${r.rule})</span> <a class="jump" href="#line-${r.line}" data-line="${r.line}" data-column="${r.column}">line ${r.line}, column ${r.column}</a>: ${withCode(r.message)}</li>`
+    return html`<li><span class="rule">${ruleLabel(r.rule, r.name)}</span> <a class="jump" href="#line-${r.line}" data-line="${r.line}" data-column="${r.column}">line ${r.line}, column ${r.column}</a>: ${withCode(r.message)}</li>`
   }
   return html`<div class="cutoff refused"><div class="cutoff-head">The cutoff does not apply${statement ? html`: ${withCode(statement)}` : null}</div><ul class="reasons">${c.reasons.map(reason)}</ul></div>`
 }

@@ -53,7 +53,7 @@ check cranes: bounded
 const orchard = '# Orchard counters\n\n```protocol\nprotocol orchard {\n  timing synchronous(delay: 1, idle: 1)\n  faults crash\n  message ripe\n  state baskets: 0..2 = 0\n  step {\n    baskets := baskets + 1\n  }\n}\n```\n\n```property\nproperty small = forall p: always p.baskets <= 2\nproperty tidy = forall p: always p.baskets >= 0\n```\n\n```check\ncheck orchard: small, tidy\n```\n'
 
 /** Quay bells: an aggregate feeds a broadcast, so the cutoff is refused; one check gives sizes. */
-const quay = '# Quay bells\n\n```protocol\nprotocol quay {\n  timing synchronous(delay: 1, idle: 1)\n  faults crash\n  message bell\n  state heard[peer]: bool = false\n  state loud: bool = false\n  on bell from q { heard[q] := true }\n  step {\n    loud := some q: heard[q]\n    if loud { broadcast bell }\n  }\n}\n```\n\n```property\nproperty rings = forall p, q: always (p.heard[q] implies alive(q) or crashed(q))\n```\n\n```check\ncheck quay: rings\ncheck quay: rings for 2 processes\n```\n'
+const quay = '# Quay bells\n\n```protocol\nprotocol quay {\n  timing synchronous(delay: 1, idle: 1)\n  faults crash\n  message bell\n  state heard[peer]: bool = false\n  state loud: bool = false\n  on bell from q { heard[q] := true }\n  step {\n    loud := some q: heard[q]\n    if loud { broadcast bell }\n  }\n}\n```\n\n```property\nproperty rings = forall p, q: always (p.heard[q] implies alive(q) or crashed(q))\n```\n\n```check\ncheck quay: rings\ncheck quay: rings at N = 2\n```\n'
 
 async function openWith(name: string, text: string, title: string): Promise<{ page: Page; close: () => Promise<void> }> {
   const { context, page } = await openPage(bench)

@@ -51,7 +51,7 @@ describe('long checks', () => {
       if (/states\/s/.test(status)) progress.push(status)
       await page.waitForTimeout(250)
     }
-    const states = await page.locator('.verdict .counts').first().textContent()
+    const states = await page.locator('.verdict .counts', { hasText: 'transitions' }).first().textContent()
     expect(states).toContain('1,048,576 states')
     expect(progress.length).toBeGreaterThan(0)
     const long = await page.evaluate(() => (window as unknown as { __long: number[] }).__long)

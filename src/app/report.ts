@@ -7,7 +7,7 @@ import type { CheckRow } from '../../kernels/result'
 import { DIAGRAM_CSS } from './diagram'
 import { propertiesToTex } from './formula-tex'
 import { html, raw, type Markup } from './html'
-import { findingsMarkup } from './results'
+import { CAUTION, findingsMarkup } from './results'
 import { summaryMarkup } from './summary'
 import { titleOf } from './title'
 import { contentOf, type Segment } from './segments'
@@ -96,7 +96,9 @@ export function buildReport(input: ReportInput): string {
       }
     }
   })
-  const summary = raw(summaryMarkup([...input.checks.values()].flat()))
+  // The caution is said once: inside the summary, or on its own when nothing was checked.
+  const tally = summaryMarkup([...input.checks.values()].flat())
+  const summary = raw(tally || html`<p class="caution">${CAUTION}</p>`.text)
   const csp = "default-src 'none'; style-src 'unsafe-inline'; img-src data:"
   return '<!doctype html>\n' + html`<html lang="en"><head><meta charset="utf-8"><meta http-equiv="Content-Security-Policy" content="${csp}"><meta name="viewport" content="width=device-width, initial-scale=1"><title>${input.title}</title><style>${raw(CSS)}</style></head><body><main><header class="report"><h1>${input.title}</h1><div class="meta">Report made ${input.created.toISOString()} by twofold from a notebook with SHA-256 <code>${input.sha256}</code>.</div>${summary}</header>${parts}</main></body></html>`.text
 }

@@ -10,12 +10,12 @@ import { exportMarkdown, exportRecord, exportReport, type ExportHost } from './e
 import { Keeper } from './keeper'
 import { Kernel } from './kernel'
 import { Notices, type NoticeAction } from './notices'
-import { deleteBlock, insertBlock, lineAt, lineStarts, moveBlock, replaceContent, segment, type Segment, type SegmentKind } from './segments'
+import { deleteBlock, insertBlock, lineAt, moveBlock, replaceContent, segment, type Segment, type SegmentKind } from './segments'
 import { Shelf, shownTitle, type StoredNotebook } from './store'
 import { ShelfPanel } from './shelf-panel'
 import { lightTick, topBar } from './header'
 import { Findings } from './findings'
-import { placeDiagnostics } from './diagnostics'
+import { jumpTo, onJumpClick, placeDiagnostics } from './diagnostics'
 import { Notebooks } from './notebooks'
 import { withTitle } from './title'
 
@@ -98,7 +98,7 @@ export class Workbench {
     })
     const main = el('main', { class: 'page' }, this.notices.root, this.notesEl, this.findings.summaryEl, this.docEl)
     this.root.replaceChildren(bar, el('div', { class: 'columns' }, this.shelfPanel.root, main), dialog)
-    this.docEl.addEventListener('click', (e) => this.onDocClick(e))
+    this.docEl.addEventListener('click', (e) => onJumpClick(e, (line, column) => this.jumpToLine(line, column)))
     this.docEl.addEventListener('mouseover', lightTick)
     this.docEl.addEventListener('focusin', lightTick)
   }
@@ -287,22 +287,11 @@ export class Workbench {
 
   // ---- page events -----------------------------------------------------------------------
 
-  private onDocClick(e: MouseEvent): void {
-    const a = (e.target as HTMLElement).closest<HTMLAnchorElement>('a.jump')
-    if (!a) return
-    e.preventDefault()
-    this.jumpToLine(Number(a.dataset.line), Number(a.dataset.column))
-  }
+
 
   /** Puts the cursor at a notebook line and column, in the editor of the block that holds it. */
-  jumpToLine(line: number, column: number): void {
-    const starts = lineStarts(this.text)
-    const offset = Math.min((starts[line - 1] ?? this.text.length) + Math.max(column - 1, 0), this.text.length)
-    const i = this.segmentAt(offset)
-    const view = this.views[i]
-    if (view instanceof FormalView) view.editor.jumpTo(offset - view.seg.contentFrom)
-    else view?.root.scrollIntoView({ block: 'center' })
-  }
+  jumpToLine(line: number, column: number): void { jumpTo(this.text, this.views, (o) => this.segmentAt(o), line, column) }
+
 
 
 

@@ -2,12 +2,13 @@
 // exploration of the same instance in the same run.
 import { readFileSync } from 'node:fs'
 import { analyzeNotebook } from '../kernels/language/analyze'
+import type { Term } from '../kernels/language/model'
+import { FairGraphRecorder, systemOf } from '../kernels/explore/fairgraph'
 import { explore } from '../kernels/explore/reach'
 import { fromModel } from '../kernels/logic/ltl'
 import { checkLtl } from '../kernels/logic/product'
 import { compileInstance } from '../kernels/model/instance'
 import { compileTerm } from '../kernels/model/observe'
-import { atomsOf, fairGraph, systemOf } from '../kernels/run'
 
 export interface ProductCase {
   name: string
@@ -36,12 +37,15 @@ export function productCases(root: URL): ProductCase[] {
     const protocol = model.protocols[check.protocol]
     const prop = check.properties.find((p) => p.name === c.property)!
     const inst = compileInstance(protocol, c.processes, protocol.consts.map((k) => k.value))
-    const r = explore(inst)
-    const terms = atomsOf(prop.formula)
+    // The fair graph is recorded during exploration, as the runner does (its cost is in exploreSeconds).
+    const recorder = new FairGraphRecorder(inst)
+    const r = explore(inst, { edges: recorder })
+    const terms: Term[] = []
+    const ltl = fromModel(prop.formula, (t) => terms.push(t) - 1)
     const assignment = prop.vars.map((_, i) => i)
     const t0 = performance.now()
-    const sys = systemOf(inst, r, fairGraph(inst, r)!, terms.map((t) => compileTerm(inst, t, assignment)))
-    const v = checkLtl(sys, fromModel(prop.formula, (t) => terms.indexOf(t)))
+    const sys = systemOf(inst, r, recorder.graph(r.states), terms.map((t) => compileTerm(inst, t, assignment)))
+    const v = checkLtl(sys, ltl)
     const productSeconds = (performance.now() - t0) / 1000
     out.push({
       name: `${c.file.replace('notebooks/', '')} ${protocol.name}: ${prop.name}`,

@@ -3,6 +3,8 @@
 import { exploreCases, hashBaseline } from './explore'
 import { parseCases } from './parse'
 import { productCases } from './product'
+import { reductionCases } from './reduction'
+import { temporalCases } from './temporal'
 
 const json = process.argv.includes('--json')
 const root = new URL('../', import.meta.url)
@@ -11,6 +13,8 @@ const parse = parseCases()
 const baseline = hashBaseline()
 const cases = exploreCases()
 const product = productCases(root)
+const temporal = temporalCases()
+const reduction = reductionCases()
 
 const transitionsPerSecond = (c: { transitions: number; seconds: number }) => c.transitions / c.seconds
 const best = Math.max(...cases.map(transitionsPerSecond))
@@ -20,6 +24,8 @@ const report = {
   ratio: { transitionsPerSecondOverInsertsPerSecond: best / baseline.insertsPerSecond },
   parse,
   product,
+  temporal,
+  reduction,
 }
 
 if (json) {
@@ -35,6 +41,14 @@ if (json) {
   console.log('Temporal product (product states per second, against plain exploration)')
   for (const p of product) {
     console.log(`  ${p.name.padEnd(48)} N=${p.processes}  ${f(p.states).padStart(9)} states ${f(p.statesPerSecond).padStart(10)}/s   ${f(p.productStates).padStart(9)} product states ${f(p.productStatesPerSecond).padStart(10)}/s  holds=${p.holds}`)
+  }
+  console.log('Temporal rows against the invariant row of the same instance (goal: at most 2x; B = bytes per reachable state)')
+  for (const t of temporal) {
+    console.log(`  ${t.name.padEnd(48)} N=${t.processes} ${t.mode.padEnd(9)} ${f(t.states).padStart(9)} states ${f(t.productNodes).padStart(9)} product nodes  ${t.temporalSeconds.toFixed(2)} s = ${t.overInvariant.toFixed(2)}x invariant (${t.invariantSeconds.toFixed(2)} s)  product ${f(t.productNodesPerSecond)}/s vs explore ${f(t.statesPerSecond)}/s  ${t.temporalBytesPerState.toFixed(0)} B temporal, ${t.storeBytesPerState.toFixed(0)} B store`)
+  }
+  console.log('Symmetry reduction against unreduced search (goal: speedup above 1)')
+  for (const c of reduction) {
+    console.log(`  ${c.name.padEnd(48)} N=${c.processes}  ${f(c.representatives).padStart(9)} representatives for ${f(c.orbitTotal)} of ${f(c.states)} states  ${c.reducedSeconds.toFixed(2)} s against ${c.unreducedSeconds.toFixed(2)} s = ${c.speedup.toFixed(2)}x`)
   }
   const pc = parse.cases[0]
   console.log('Parse and check')

@@ -35,6 +35,12 @@ export interface RunOptions {
   onProgress?: (p: Progress) => void
   /** Polled regularly; returning true stops the current check (its row becomes inconclusive). */
   shouldStop?: () => boolean
+  /**
+   * Temporal rows: recompute the fair graph's rows when the product asks for them instead of
+   * recording the graph during exploration (less memory, more time). Also automatic above
+   * `RECORD_EDGE_BUDGET` edges.
+   */
+  recomputeEdges?: boolean
 }
 
 /** The rows of one property of one check: sizes (outer) times constant settings (inner, last sweep item fastest). */

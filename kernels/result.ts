@@ -15,8 +15,8 @@ export interface MessageEvent { from: number; to: number; message: string }
 export interface TickRecord {
   tick: number
   crashed: number[]
-  /** eventually synchronous only: true in the tick that set `stable` (GST: the bounds hold from then on). */
-  stabilized?: boolean
+  /** `eventually synchronous` only: true in the tick in which GST passes (the tick sets `stable`; the bounds hold from then on). */
+  gst?: boolean
   stepped: number[]
   received: MessageEvent[]
   sent: MessageEvent[]

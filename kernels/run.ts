@@ -8,16 +8,16 @@ export { planRows } from './plan'
 import { analyzeNotebook } from './language/analyze'
 import { instantiatedText } from './language/instantiate'
 import type { CheckModel, Formula, NotebookModel, PropertyModel, ProtocolModel, Term } from './language/model'
-import { explore, type ExploreResult } from './explore/reach'
+import { FairGraphRecorder, lassoTicks, systemOf } from './explore/fairgraph'
+import { explore } from './explore/reach'
 import { modelErrorCounterexample, traceCounterexample } from './explore/trace'
 import { fromModel } from './logic/ltl'
-import { Int32Buffer } from './logic/buffer'
 import { checkLtl, type System } from './logic/product'
 import { MAX_TEMPORAL_PROCESSES } from './language/limits'
 import { ModelSetupError, PropertyFault } from './model/errors'
 import { compileInstance, type Instance } from './model/instance'
-import { channelEmpty, compileTerm, isCrashed, isStable, type StateTerm } from './model/observe'
-import { canonicalizer, freePermutations, permuteState } from './symmetry/canon'
+import { compileTerm, type StateTerm } from './model/observe'
+import { canonicalizer, orbitTotal } from './symmetry/canon'
 import { decideCutoff } from './symmetry/cutoff'
 import { RULE_NAMES } from './symmetry/rules'
 import { sha256Hex } from './record/hash'
@@ -102,182 +102,6 @@ function atomBands(inst: Instance, data: Uint32Array, path: number[], prop: Prop
  */
 function invariantBody(f: Formula): Formula | null {
   return f.k === 'always' && !temporal(f.arg) ? f.arg : null
-}
-
-/**
- * The state graph of a completely explored instance with the fairness marks of every edge, in
- * compressed rows: the successors of s are target[start[s] .. start[s+1]), each with its marks.
- * Built once per row and shared by every assignment of the property's variables, so the product
- * never recomputes a tick.
- */
-export interface FairGraph {
-  start: Int32Array
-  target: Int32Array
-  marks: Int32Array
-  initial: number[]
-  fairnessSets: number
-}
-
-/**
- * Fairness sets (semantics.md) as transition marks: bit i, process i steps or is crashed; then one
- * bit per channel j->i: i is crashed, or the channel is empty at the source, or i receives from it
- * in the tick; last, under eventually synchronous, the edge ends in a stable state.
- */
-export interface FairMarks {
-  fairnessSets: number
-  /** The marks every edge out of this source carries (crashes and empty channels). */
-  sourceMarks(src: Uint32Array, off: number): number
-  /** The marks of one edge, given its source marks and what `successors` reported. */
-  edgeMarks(base: number, dst: Uint32Array, dstOff: number, stepped: number, receivedFrom: number): number
-}
-
-export function fairMarks(inst: Instance): FairMarks {
-  const n = inst.n
-  const crashed = Array.from({ length: n }, (_, i) => isCrashed(inst, i))
-  const channels: { i: number; bit: number; index: number; test: (w: Uint32Array, o: number) => boolean }[] = []
-  for (let j = 0; j < n; j++) {
-    for (let i = 0; i < n; i++) {
-      // Channel index of j->i as the instance numbers it (see Instance.channelCount).
-      if (i !== j) channels.push({ i, bit: n + channels.length, index: j * (n - 1) + (i < j ? i : i - 1), test: channelEmpty(inst, j, i) })
-    }
-  }
-  const stab = inst.protocol.timing.kind === 'eventually synchronous' ? isStable(inst) : null
-  const fairnessSets = n + channels.length + (stab ? 1 : 0)
-  return {
-    fairnessSets,
-    sourceMarks(src, off) {
-      let base = 0
-      for (let i = 0; i < n; i++) if (crashed[i](src, off)) base |= 1 << i
-      for (const c of channels) if ((base >> c.i) & 1 || c.test(src, off)) base |= 1 << c.bit
-      return base
-    },
-    edgeMarks(base, dst, dstOff, stepped, receivedFrom) {
-      let m = base | stepped
-      for (const c of channels) if ((receivedFrom >> c.index) & 1) m |= 1 << c.bit
-      for (let i = 0; i < n; i++) if (!((m >> i) & 1) && crashed[i](dst, dstOff)) m |= 1 << i
-      if (stab && stab(dst, dstOff)) m |= 1 << (fairnessSets - 1)
-      return m
-    },
-  }
-}
-
-/**
- * The state graph of a completely explored instance with the fairness marks of every edge. An edge
- * that reaches the same target with other marks (other processes stepping) is a separate edge.
- * Returns null when stopped.
- */
-export function fairGraph(inst: Instance, r: ExploreResult, shouldStop?: () => boolean): FairGraph | null {
-  const W = inst.words
-  const store = r.store
-  const fm = fairMarks(inst)
-  const initial: number[] = []
-  const init = inst.initialStates()
-  for (let off = 0; off < init.length; off += W) {
-    const k = store.lookup(init, off)
-    if (k >= 0 && !initial.includes(k)) initial.push(k)
-  }
-  const states = store.size
-  const start = new Int32Array(states + 1)
-  const target = new Int32Buffer(Math.max(1024, r.transitions + 16))
-  const marks = new Int32Buffer(Math.max(1024, r.transitions + 16))
-  const src = new Uint32Array(W)
-  let base = 0
-  let rowStart = 0
-  const emit = (dst: Uint32Array, stepped: number, receivedFrom: number): boolean => {
-    const t = store.lookup(dst, 0)
-    if (t < 0) return false
-    const m = fm.edgeMarks(base, dst, 0, stepped, receivedFrom)
-    const td = target.data, md = marks.data
-    for (let k = rowStart; k < target.length; k++) if (td[k] === t && md[k] === m) return false
-    target.push(t)
-    marks.push(m)
-    return false
-  }
-  for (let s = 0; s < states; s++) {
-    if ((s & 1023) === 0 && shouldStop?.()) return null
-    start[s] = rowStart = target.length
-    store.get(s, src, 0)
-    base = fm.sourceMarks(src, 0)
-    inst.successors(src, 0, emit)
-  }
-  start[states] = target.length
-  return { start, target: target.data.subarray(0, target.length), marks: marks.data.subarray(0, marks.length), initial, fairnessSets: fm.fairnessSets }
-}
-
-/**
- * The ticks of a lasso (states `path`, the last equal to path[loopStart]). Each edge of the loop is
- * told as the tick that carries the marks the fair cycle used, so that the loop shown is fair:
- * processes that must step infinitely often are seen stepping.
- */
-function lassoTicks(inst: Instance, store: ExploreResult['store'], path: number[], loopStart: number, cycleMarks: number[]) {
-  const W = inst.words
-  const fm = fairMarks(inst)
-  const src = new Uint32Array(W)
-  const data = store.data
-  const ticks = []
-  for (let i = 0; i + 1 < path.length; i++) {
-    let want: { stepped: number; receivedFrom: number } | undefined
-    if (i >= loopStart) {
-      const need = cycleMarks[i - loopStart]
-      store.get(path[i], src, 0)
-      const base = fm.sourceMarks(src, 0)
-      const to = path[i + 1]
-      inst.successors(src, 0, (dst, stepped, receivedFrom) => {
-        if (store.lookup(dst, 0) !== to || fm.edgeMarks(base, dst, 0, stepped, receivedFrom) !== need) return false
-        want = { stepped, receivedFrom }
-        return true
-      })
-    }
-    ticks.push(inst.describeTick(data, path[i] * W, data, path[i + 1] * W, i + 1, want))
-  }
-  return ticks
-}
-
-/** The system the temporal product reads: a fair graph and the atoms of one assignment. */
-export function systemOf(inst: Instance, r: ExploreResult, g: FairGraph, atoms: StateTerm[]): System {
-  const W = inst.words
-  const data = r.store.data
-  const masks = new Int32Array(r.store.size)
-  for (let s = 0; s < masks.length; s++) {
-    let m = 0
-    for (let k = 0; k < atoms.length; k++) if (atoms[k](data, s * W)) m |= 1 << k
-    masks[s] = m
-  }
-  const { start, target, marks } = g
-  return {
-    fairnessSets: g.fairnessSets,
-    initial: () => g.initial,
-    atoms: (s) => masks[s],
-    successors(s, to, fair) {
-      for (let k = start[s], e = start[s + 1]; k < e; k++) {
-        to.push(target[k])
-        fair.push(marks[k])
-      }
-    },
-  }
-}
-
-/**
- * The number of states a reduced exploration stands for: each representative counts for the size
- * of its orbit, the number of permutations of the free processes divided by those that fix it.
- */
-function orbitTotal(inst: Instance, r: ExploreResult, fixed: number[]): number {
-  const W = inst.words
-  const perms = freePermutations(inst.n, fixed)
-  const data = r.store.data
-  const image = new Uint32Array(W)
-  let total = 0
-  for (let s = 0; s < r.states; s++) {
-    let stabilizer = 0
-    for (const p of perms) {
-      permuteState(inst, data, s * W, p, image)
-      let k = 0
-      while (k < W && image[k] === data[s * W + k]) k++
-      if (k === W) stabilizer++
-    }
-    total += perms.length / stabilizer
-  }
-  return total
 }
 
 function emptyCutoff(): CutoffInfo {
@@ -397,7 +221,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
       row.method = 'invariant'
       row.assignment = named(prop, fixed)
       row.reducedStates = rr.states
-      row.states = orbitTotal(inst, rr, fixed)
+      row.states = orbitTotal(inst, rr.store.data, rr.states, fixed)
       row.transitions = rr.transitions
       if (!rr.complete) {
         row.note = rr.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`within K states\``
@@ -410,7 +234,9 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
     }
     // A violation or a model error: explore again without reduction for a real, shortest trace.
   }
-  const r = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: progress, invariant })
+  // The temporal route records the fair graph in the same pass (unless told to save memory).
+  const recorder = inv ? undefined : new FairGraphRecorder(inst, opts.recomputeEdges ? 0 : undefined)
+  const r = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: progress, invariant, edges: recorder })
   row.states = r.states
   row.transitions = r.transitions
   row.method = inv ? 'invariant' : 'ltl'
@@ -447,11 +273,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   }
   // Temporal property: the product with the automaton of the negation, per assignment.
   let productNodes = 0
-  const graph = fairGraph(inst, r, opts.shouldStop)
-  if (!graph) {
-    row.note = 'the check was stopped before it finished'
-    return row
-  }
+  const graph = recorder!.graph(r.states)
   for (const a of chosen) {
     const compiled = terms.map((t) => compileTerm(inst, t, a))
     let sys: System

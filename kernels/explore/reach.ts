@@ -19,6 +19,17 @@ export interface ExploreProgress {
   seconds: number
 }
 
+/**
+ * Sees every edge of the exploration, source by source in index order (breadth-first numbering),
+ * so a graph can be recorded in the same pass. Not for reduced explorations.
+ */
+export interface EdgeRecorder {
+  /** Source `index` (held in src[0..words)) is about to be expanded. */
+  beginSource(index: number, src: Uint32Array): void
+  /** One successor of the current source: its store index and what `successors` reported. */
+  edge(target: number, dst: Uint32Array, stepped: number, receivedFrom: number): void
+}
+
 export interface ExploreOptions {
   /** Stop (incomplete, `limitHit`) rather than store more than this many states. */
   limit?: number
@@ -42,6 +53,8 @@ export interface ExploreOptions {
    * (outcome 'model-error', with its trace). Default: stop at the first error.
    */
   continueOnError?: boolean
+  /** Records every edge during the search (see `EdgeRecorder`); incompatible with `canonicalize`. */
+  edges?: EdgeRecorder
 }
 
 export interface ExploreResult {
@@ -126,6 +139,8 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
   let errorSource = -1
 
   const canon = opts.canonicalize
+  const rec = opts.edges
+  if (rec && canon) throw new Error('internal error: edges are recorded between real states, not representatives')
   const rep = new Uint32Array(W)
   let init = inst.initialStates()
   if (canon) {
@@ -156,9 +171,18 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
   }
 
   const seen = new TargetSet()
-  const emit = (succ: Uint32Array): boolean => {
+  // Under reduction, the raw successors of the current source: many successor combinations (crash
+  // subsets, choices) give the same state, and a repeat maps to the same representative, so it
+  // skips the canonical form (the costly part: one image per permutation) and changes nothing.
+  const raw = canon ? new StateStore(W, 64) : null
+  const emit = (succ: Uint32Array, stepped: number, receivedFrom: number): boolean => {
     let dst = succ
-    if (canon) { canon(succ, 0, rep); dst = rep }
+    if (canon) {
+      const before = raw!.size
+      if (raw!.insert(succ, 0) < before) return false
+      canon(succ, 0, rep)
+      dst = rep
+    }
     let idx = store.lookup(dst, 0)
     if (idx < 0) {
       if (store.size >= limit) {
@@ -167,10 +191,12 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
       }
       idx = store.insert(dst, 0)
       if (seen.add(idx)) transitions++
+      if (rec) rec.edge(idx, dst, stepped, receivedFrom)
       if (invariant && !check(dst, 0, idx)) return true
       return false
     }
     if (seen.add(idx)) transitions++
+    if (rec) rec.edge(idx, dst, stepped, receivedFrom)
     return false
   }
 
@@ -189,6 +215,8 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
     }
     store.get(head, src, 0)
     seen.reset()
+    if (raw) raw.clear()
+    if (rec) rec.beginSource(head, src)
     bound.room = limit - store.size
     const err = inst.successors(src, 0, emit, bound)
     if (bound.interrupted) {

@@ -12,12 +12,28 @@
 // breadth-first searches to the nearest edge carrying a still-missing mark, and back.
 import { Int32Buffer } from './buffer'
 
+/** Where a graph appends edges: plain arrays in tests, the search's packed buffers in the kernel. */
+export interface EdgeSink {
+  push(v: number): unknown
+}
+
 /** A graph explored on the fly, with acceptance marks (bits 0..30) on its edges. */
 export interface MarkedGraph {
-  /** Node ids of the initial nodes. Node ids are assigned by the graph, dense from 0. */
+  /** Node ids of the initial nodes. Node ids are assigned by the graph (non-negative integers). */
   initial(): number[]
-  /** Appends the successors of `node` and the acceptance marks of each edge to `to` / `marks`. */
-  successors(node: number, to: number[], marks: number[]): void
+  /**
+   * Appends the successors of `node` and the acceptance marks of each edge to `to` / `marks`.
+   * The search hands its own packed buffers, so nothing is copied from a JavaScript array.
+   */
+  successors(node: number, to: EdgeSink, marks: EdgeSink): void
+}
+
+/** Work counters of one search (filled in when passed as `EmptinessOptions.work`). */
+export interface EmptinessWork {
+  /** Iterations of the main loop: one per pending edge read plus one per frame popped. */
+  iterations: number
+  /** Bytes of the search's packed tables and stacks when it ended (their peak: they never shrink). */
+  bytes?: number
 }
 
 /** Options of `findAcceptingLasso`. */
@@ -26,6 +42,8 @@ export interface EmptinessOptions {
   shouldStop?: () => boolean
   /** Called at most every 100 ms with the nodes and edges explored so far. */
   onProgress?: (nodes: number, edges: number) => void
+  /** Receives the search's work counters (a test bounds work by the edges, not time). */
+  work?: EmptinessWork
 }
 
 /**
@@ -64,12 +82,12 @@ export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: Empti
   const rootNum = new Int32Buffer() // the roots stack: DFS number of each partial component's root,
   const rootAcc = new Int32Buffer() // the marks seen inside it,
   const rootIn = new Int32Buffer() // and the marks of the tree edge that entered its root
-  const frameNode = new Int32Buffer() // the DFS stack: node and its next pending edge
+  const frameNode = new Int32Buffer() // the DFS stack: node, where its edges start, its next pending edge
+  const frameStart = new Int32Buffer()
   const framePos = new Int32Buffer()
   const edgeTo = new Int32Buffer() // pending edges of every frame, each frame's edges contiguous
   const edgeMark = new Int32Buffer()
-  const to: number[] = [], marks: number[] = []
-  let counter = 0, nodes = 0, edges = 0, maxId = -1
+  let counter = 0, nodes = 0, edges = 0, maxId = -1, iterations = 0
   let lastReport = Date.now()
 
   const push = (v: number, inMark: number) => {
@@ -81,17 +99,24 @@ export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: Empti
     rootAcc.push(0)
     rootIn.push(inMark)
     frameNode.push(v)
-    framePos.push(edgeTo.length)
-    to.length = 0
-    marks.length = 0
-    g.successors(v, to, marks)
-    edges += to.length
-    for (let i = 0; i < to.length; i++) {
-      const w = to[i]
-      if (w > maxId) { maxId = w; num.ensure(w + 1) }
-      edgeTo.push(w)
-      edgeMark.push(marks[i] | 0)
+    const from = edgeTo.length
+    frameStart.push(from)
+    framePos.push(from)
+    g.successors(v, edgeTo, edgeMark)
+    const end = edgeTo.length
+    edges += end - from
+    const td = edgeTo.data
+    let top = maxId
+    for (let i = from; i < end; i++) if (td[i] > top) top = td[i]
+    if (top > maxId) { maxId = top; num.ensure(top + 1) }
+  }
+  const done = (r: EmptinessResult): EmptinessResult => {
+    if (opts.work) {
+      opts.work.iterations = iterations
+      opts.work.bytes = [num, active, rootNum, rootAcc, rootIn, frameNode, frameStart, framePos, edgeTo, edgeMark]
+        .reduce((b, x) => b + x.data.byteLength, 0)
     }
+    return r
   }
 
   for (const init of g.initial()) {
@@ -99,6 +124,7 @@ export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: Empti
     if (num.data[init] !== 0) continue
     push(init, 0)
     while (frameNode.length > 0) {
+      iterations++
       const f = frameNode.length - 1
       const v = frameNode.data[f]
       // Only the top frame is ever worked on, so its pending edges run to the end of the buffer.
@@ -109,7 +135,7 @@ export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: Empti
         const nw = num.data[w]
         if (nw === 0) {
           if ((nodes & 1023) === 0) {
-            if (opts.shouldStop?.()) return { kind: 'stopped', nodes, edges }
+            if (opts.shouldStop?.()) return done({ kind: 'stopped', nodes, edges })
             if (opts.onProgress) {
               const now = Date.now()
               if (now - lastReport >= 100) { lastReport = now; opts.onProgress(nodes, edges) }
@@ -127,14 +153,17 @@ export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: Empti
           rootAcc.data[r] |= acc
           if ((rootAcc.data[r] & all) === all) {
             const lasso = buildLasso(g, all, num, active, rootNum.top(), maxId)
-            return { kind: 'lasso', ...lasso, nodes, edges }
+            return done({ kind: 'lasso', ...lasso, nodes, edges })
           }
         }
         continue
       }
-      // v's edges are done: drop its frame and, when v is a root, close its component.
+      // v's edges are done: drop its frame and its edges (cut back to where they start, so the
+      // parent resumes at its own cursor and never re-reads its descendants' edges), and, when v
+      // is a root, close its component.
       frameNode.pop()
-      edgeTo.length = edgeMark.length = framePos.pop()
+      framePos.pop()
+      edgeTo.length = edgeMark.length = frameStart.pop()
       if (rootNum.top() === num.data[v]) {
         rootNum.pop(); rootAcc.pop(); rootIn.pop()
         let w: number
@@ -145,7 +174,7 @@ export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: Empti
       }
     }
   }
-  return { kind: 'empty', nodes, edges }
+  return done({ kind: 'empty', nodes, edges })
 }
 
 /**
@@ -197,8 +226,8 @@ class Search {
   private parentMark: Int32Array
   private seen: Uint8Array
   private touched: number[] = []
-  private to: number[] = []
-  private marks: number[] = []
+  private to = new Int32Buffer()
+  private marks = new Int32Buffer()
 
   constructor(size: number) {
     this.parent = new Int32Array(size)
@@ -236,7 +265,7 @@ class Search {
       marks.length = 0
       g.successors(u, to, marks)
       for (let i = 0; i < to.length; i++) {
-        const w = to[i], m = marks[i] | 0
+        const w = to.data[i], m = marks.data[i]
         if (!allowed(w)) continue
         if (goal(u, w, m)) return path(u, w, m)
         if (!seen[w]) {

@@ -9,7 +9,8 @@
 // (bits 0..f-1) together with q's acceptance sets shifted above them (bits f..f+a-1): q's sets,
 // the source's, are the automaton's transition marks (see automaton.ts).
 import { type Automaton, allAcceptance, labelHolds, ltlToAutomaton } from './automaton'
-import { type EmptinessOptions, type MarkedGraph, findAcceptingLasso } from './emptiness'
+import { Int32Buffer } from './buffer'
+import { type EdgeSink, type EmptinessOptions, type MarkedGraph, findAcceptingLasso } from './emptiness'
 import { type Ltl, not } from './ltl'
 import { PairMap } from './pairmap'
 
@@ -18,18 +19,31 @@ export interface System {
   /** The initial state ids. */
   initial(): number[]
   /** Appends the successors of `s` to `to` and the fairness marks of each edge (bits 0..f-1) to `fair`. */
-  successors(s: number, to: number[], fair: number[]): void
+  successors(s: number, to: EdgeSink, fair: EdgeSink): void
   /** The mask of the atoms that hold in state s (bit i = atom i). */
   atoms(s: number): number
   /** f: the number of fairness sets; a fair run passes infinitely often through edges marked with each. */
   fairnessSets: number
+  /**
+   * When known, every state id is below this: the product then numbers (s, q) as s * Q + q with
+   * no hash table (while that fits `DENSE_NODES`).
+   */
+  states?: number
 }
+
+/** Largest id range numbered densely (4 bytes of the search's table per id: 128 MiB at most). */
+export const DENSE_NODES = 1 << 25
 
 /** The product graph, with a way back from node ids to (system state, automaton state). */
 export type ProductGraph = MarkedGraph & {
   decode(node: number): { state: number; automaton: number }
-  /** Number of product nodes numbered so far. */
+  /**
+   * Every node id handed out so far is below this. Hashed numbering: the number of nodes
+   * numbered so far, each a real node. Dense numbering: states x automaton states.
+   */
   readonly size: number
+  /** Whether ids are s * Q + q (dense) rather than handed out by a hash table in order of discovery. */
+  readonly dense: boolean
   /** Mask of every mark of the product: all fairness sets and all acceptance sets. */
   readonly allMarks: number
 }
@@ -40,47 +54,55 @@ export function productGraph(sys: System, aut: Automaton): ProductGraph {
   if (f + aut.acceptanceSets > 31) {
     throw new Error(`${f} fairness sets and ${aut.acceptanceSets} acceptance sets exceed the 31 marks the product supports`)
   }
-  const pairs = new PairMap()
+  const Q = aut.states
+  const dense = sys.states !== undefined && sys.states * Q <= DENSE_NODES
+  const pairs = dense ? null : new PairMap()
+  const id = pairs ? (s: number, q: number) => pairs.id(s, q) : (s: number, q: number) => s * Q + q
   const { succStart, succ, accept, mustTrue, mustFalse } = aut
-  const to: number[] = [], fair: number[] = []
+  const to = new Int32Buffer(), fair = new Int32Buffer()
   const allMarks = ((f === 0 ? 0 : 2 ** f - 1) | (allAcceptance(aut) << f)) | 0
   return {
     allMarks,
-    get size() { return pairs.size },
+    dense,
+    get size() { return pairs ? pairs.size : sys.states! * Q },
     initial() {
       const ids: number[] = []
       for (const s of sys.initial()) {
         const a = sys.atoms(s)
         for (let i = 0; i < aut.initial.length; i++) {
           const q = aut.initial[i]
-          if (labelHolds(aut, q, a)) ids.push(pairs.id(s, q))
+          if (labelHolds(aut, q, a)) ids.push(id(s, q))
         }
       }
       return ids
     },
     successors(node, out, marks) {
-      const s = pairs.first.data[node], q = pairs.second.data[node]
+      const s = pairs ? pairs.first.data[node] : Math.floor(node / Q)
+      const q = pairs ? pairs.second.data[node] : node - s * Q
       const acc = accept[q] << f
       to.length = 0
       fair.length = 0
       sys.successors(s, to, fair)
       const from = succStart[q], end = succStart[q + 1]
+      const td = to.data, fd = fair.data
       for (let i = 0; i < to.length; i++) {
-        const t = to[i]
+        const t = td[i]
         const a = sys.atoms(t)
-        const m = (fair[i] | acc) | 0
+        const m = (fd[i] | acc) | 0
         for (let j = from; j < end; j++) {
           const r = succ[j]
           // labelHolds(aut, r, a), inlined: this is the innermost loop of the whole check.
           if (((a & mustTrue[r]) ^ mustTrue[r]) === 0 && (a & mustFalse[r]) === 0) {
-            out.push(pairs.id(t, r))
+            out.push(id(t, r))
             marks.push(m)
           }
         }
       }
     },
     decode(node) {
-      return { state: pairs.first.data[node], automaton: pairs.second.data[node] }
+      if (pairs) return { state: pairs.first.data[node], automaton: pairs.second.data[node] }
+      const state = Math.floor(node / Q)
+      return { state, automaton: node - state * Q }
     },
   }
 }

@@ -143,7 +143,7 @@ export function compileInstance(protocol: ProtocolModel, n: number, constants: n
         }
       }
       const rec: TickRecord = { tick, crashed, stepped, received, sent, changes }
-      if (layout.timing === 'eventually synchronous') rec.stabilized = choice.stabilized
+      if (layout.timing === 'eventually synchronous') rec.gst = choice.stabilized
       return rec
     },
 

@@ -13,16 +13,21 @@ import type { Instance } from '../model/instance'
 import { channelIndex, type Field, type Layout } from '../model/layout'
 
 /**
- * A permutation compiled to field moves: five ints per field (source word, source shift, mask,
- * target word, target shift). Zero-width fields are left out: they always read 0.
+ * A permutation compiled to field moves, grouped by the word they write: the moves that build
+ * image word w are `moves[start[w] .. start[w+1])`, four ints each (source word, source shift,
+ * mask, target shift). Zero-width fields are left out: they always read 0. Building the image one
+ * word at a time, most significant first, lets a comparison stop at the first word that differs.
  */
-type Moves = Int32Array
+interface Moves {
+  moves: Int32Array
+  start: Int32Array
+}
 
 function compileMoves(layout: Layout, perm: readonly number[]): Moves {
-  const out: number[] = []
+  const byWord: number[][] = Array.from({ length: layout.words }, () => [])
   const move = (from: Field | null, to: Field | null) => {
     if (!from || !to || from.bits === 0) return
-    out.push(from.word, from.shift, (0xffffffff >>> (32 - from.bits)) | 0, to.word, to.shift)
+    byWord[to.word].push(from.word, from.shift, (0xffffffff >>> (32 - from.bits)) | 0, to.shift)
   }
   const n = layout.n
   for (let i = 0; i < n; i++) {
@@ -39,15 +44,28 @@ function compileMoves(layout: Layout, perm: readonly number[]): Moves {
     for (let m = 0; m < layout.messageValues; m++) move(layout.channel[c][m], layout.channel[to][m])
   }
   move(layout.stable, layout.stable)
-  return Int32Array.from(out)
+  // Within a word, the most significant field first: the image's top bits are then final after
+  // each move (fields never overlap), so a comparison can stop after the first few moves.
+  const sorted = byWord.map((ms) => {
+    const quads: number[][] = []
+    for (let k = 0; k < ms.length; k += 4) quads.push(ms.slice(k, k + 4))
+    return quads.sort((a, b) => b[3] - a[3]).flat()
+  })
+  const start = new Int32Array(layout.words + 1)
+  for (let w = 0; w < layout.words; w++) start[w + 1] = start[w] + sorted[w].length
+  return { moves: Int32Array.from(sorted.flat()), start }
 }
 
-function applyMoves(moves: Moves, words: number, src: Uint32Array, off: number, dst: Uint32Array, dstOff: number): void {
-  dst.fill(0, dstOff, dstOff + words)
-  for (let k = 0; k < moves.length; k += 5) {
-    const v = (src[off + moves[k]] >>> moves[k + 1]) & moves[k + 2]
-    dst[dstOff + moves[k + 3]] |= v << moves[k + 4]
-  }
+/** Word w of the image of the state at src[off..] under compiled moves (unsigned). */
+function imageWord(m: Moves, w: number, src: Uint32Array, off: number): number {
+  const moves = m.moves
+  let v = 0
+  for (let k = m.start[w], e = m.start[w + 1]; k < e; k += 4) v |= ((src[off + moves[k]] >>> moves[k + 1]) & moves[k + 2]) << moves[k + 3]
+  return v >>> 0
+}
+
+function applyMoves(m: Moves, words: number, src: Uint32Array, off: number, dst: Uint32Array, dstOff: number): void {
+  for (let w = 0; w < words; w++) dst[dstOff + w] = imageWord(m, w, src, off)
 }
 
 function checkPerm(n: number, perm: readonly number[]): void {
@@ -106,18 +124,64 @@ export function canonicalizer(inst: Instance, fixed: number[]): (src: Uint32Arra
   const n = inst.n
   for (const f of fixed) if (!Number.isInteger(f) || f < 0 || f >= n) throw new Error(`fixed process ${f} is not a process of G_${n} (0-based)`)
   const words = inst.words
-  const perms = freePermutations(n, fixed).slice(1) // the identity is the starting candidate
-  const moves = perms.map((p) => compileMoves(inst.layout, p))
+  // Every permutation but the identity (the starting candidate), flattened into one table: the
+  // moves of permutation p's image word w are moves[start[p * words + w] .. start[p * words + w + 1]).
+  const { moves, start, count } = flatten(freePermutations(n, fixed).slice(1).map((p) => compileMoves(inst.layout, p)), words)
   const scratch = new Uint32Array(words)
   return (src, off, dst) => {
     for (let w = 0; w < words; w++) dst[w] = src[off + w]
-    for (const m of moves) {
-      applyMoves(m, words, src, off, scratch, 0)
+    perm: for (let p = 0, row = 0; p < count; p++, row += words) {
+      // Most significant bits first: give up on this image as soon as its top bits exceed the best.
+      let less = false
       for (let w = 0; w < words; w++) {
-        if (scratch[w] === dst[w]) continue
-        if (scratch[w] < dst[w]) dst.set(scratch)
-        break
+        let v = 0
+        const best = dst[w]
+        for (let k = start[row + w], e = start[row + w + 1]; k < e; k += 4) {
+          const sh = moves[k + 3]
+          v |= ((src[off + moves[k]] >>> moves[k + 1]) & moves[k + 2]) << sh
+          if (less) continue
+          const a = v >>> sh, b = best >>> sh
+          if (a > b) continue perm
+          if (a < b) less = true
+        }
+        scratch[w] = v >>> 0
       }
+      if (less) for (let k = 0; k < words; k++) dst[k] = scratch[k]
     }
   }
+}
+
+/** Compiled permutations in one table (see `canonicalizer`): no object is touched in the hot loop. */
+function flatten(perms: Moves[], words: number): { moves: Int32Array; start: Int32Array; count: number } {
+  const start = new Int32Array(perms.length * words + 1)
+  let total = 0
+  perms.forEach((m, p) => { for (let w = 0; w < words; w++) { start[p * words + w] = total + m.start[w]; } total += m.moves.length })
+  start[perms.length * words] = total
+  const moves = new Int32Array(total)
+  let at = 0
+  for (const m of perms) { moves.set(m.moves, at); at += m.moves.length }
+  return { moves, start, count: perms.length }
+}
+
+/**
+ * The number of states a reduced exploration stands for: each of the first `states`
+ * representatives in `data` (`words` each) counts for the size of its orbit under the permutations
+ * of the processes not in `fixed`, that is their number divided by the number that fix it. Each
+ * permutation is compiled once; a permutation is rejected at the first image word that differs.
+ */
+export function orbitTotal(inst: Instance, data: Uint32Array, states: number, fixed: number[]): number {
+  const W = inst.words
+  const perms = freePermutations(inst.n, fixed)
+  const moves = perms.slice(1).map((p) => compileMoves(inst.layout, p))
+  let total = 0
+  for (let s = 0, off = 0; s < states; s++, off += W) {
+    let stabilizer = 1 // the identity
+    for (const m of moves) {
+      let w = 0
+      while (w < W && imageWord(m, w, data, off) === data[off + w]) w++
+      if (w === W) stabilizer++
+    }
+    total += perms.length / stabilizer
+  }
+  return total
 }

@@ -218,7 +218,7 @@ export function changesTable(cx: Counterexample): string {
   })
   const rows = cx.ticks.map((t, i) => {
     const lines: Markup[] = []
-    if (t.stabilized) lines.push(html`<div class="ev-stable">GST: the delay and idle bounds hold from here on</div>`)
+    if (t.gst) lines.push(html`<div class="ev-stable">GST: the delay and idle bounds hold from here on</div>`)
     for (const p of t.crashed) lines.push(html`<div class="ev-crash">process ${p} crashes</div>`)
     if (t.stepped.length) lines.push(html`<div class="ev-step">${whoSteps(t.stepped)}</div>`)
     if (cx.kind === 'model-error' && i === cx.ticks.length - 1) lines.push(html`<div class="ev-error">model error here: this step of process ${t.stepped[0] ?? 1} breaks the model</div>`)

@@ -98,6 +98,12 @@ export function renderCounterexample(cx: Counterexample, assignment: Record<stri
     if (cx.kind === 'lasso' && i === cx.loopStart) lines.push('    -- from here the ticks repeat forever --')
     lines.push(`    t${tick.tick}  ${renderTick(tick)}`)
   })
+  // The property's atoms as written, with the assignment's processes filled in (`#1.suspect[#2]`).
+  if (cx.atoms?.length) {
+    lines.push('    atoms at the start, then after each tick (+ holds, . does not):')
+    const width = Math.max(...cx.atoms.map((a) => a.text.length))
+    for (const a of cx.atoms) lines.push(`      ${a.text.padEnd(width)}  ${a.values.map((v) => (v ? '+' : '.')).join('')}`)
+  }
   return lines
 }
 
@@ -105,7 +111,7 @@ export function renderCounterexample(cx: Counterexample, assignment: Record<stri
 export function renderTick(tick: TickRecord): string {
   const parts: string[] = []
   if (tick.crashed.length) parts.push('crash ' + tick.crashed.map((p) => `#${p}`).join(' '))
-  if (tick.stabilized) parts.push('GST')
+  if (tick.gst) parts.push('GST')
   parts.push(tick.stepped.length ? 'step ' + tick.stepped.map((p) => `#${p}`).join(' ') : 'no step')
   for (const m of tick.received) parts.push(`#${m.to}<-#${m.from} ${m.message}`)
   for (const m of tick.sent) parts.push(`#${m.from}->#${m.to} ${m.message}`)

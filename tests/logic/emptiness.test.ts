@@ -1,7 +1,7 @@
 import Graph from 'graphology'
 import { stronglyConnectedComponents } from 'graphology-components'
 import { describe, expect, it } from 'vitest'
-import { type EmptinessResult, findAcceptingLasso, type MarkedGraph } from '../../kernels/logic/emptiness'
+import { type EmptinessResult, type EmptinessWork, findAcceptingLasso, type MarkedGraph } from '../../kernels/logic/emptiness'
 import { Random } from './lasso'
 
 interface Edge { from: number; to: number; mark: number }
@@ -124,6 +124,30 @@ describe('findAcceptingLasso', () => {
     expect(res.prefix.length).toBe(n - 1)
     expect(res.cycle).toEqual([n - 1])
     expect(res.nodes).toBe(n)
+  })
+
+  // Work, not time: each pending edge is read once and each frame popped once, so the main loop
+  // runs at most edges + nodes times (a search that re-read its descendants' edges on returning
+  // to a parent would run about depth x edges times on the chain below).
+  it('reads each edge once: loop iterations are at most edges + nodes, on a deep chain and on random graphs', () => {
+    const n = 20_000
+    const chain: MarkedGraph = {
+      initial: () => [0],
+      // v -> v+1 and v -> 0: one component, no marks, so the search explores all of it.
+      successors: (v, to, marks) => { if (v + 1 < n) { to.push(v + 1); marks.push(0) } to.push(0); marks.push(0) },
+    }
+    const work: EmptinessWork = { iterations: 0 }
+    const res = findAcceptingLasso(chain, 1, { work })
+    expect(res).toEqual({ kind: 'empty', nodes: n, edges: 2 * n - 1 })
+    expect(work.iterations).toBeLessThanOrEqual(res.edges + res.nodes)
+    const r = new Random(5)
+    for (let t = 0; t < 300; t++) {
+      const size = 1 + r.int(40)
+      const edges: Edge[] = Array.from({ length: r.int(4 * size + 1) }, () => ({ from: r.int(size), to: r.int(size), mark: r.int(4) }))
+      const w: EmptinessWork = { iterations: 0 }
+      const out = findAcceptingLasso(graphOf([0], edges), 3, { work: w })
+      expect(w.iterations).toBeLessThanOrEqual(out.edges + out.nodes)
+    }
   })
 
   it('stops when shouldStop says so, reporting what it explored', () => {

@@ -121,12 +121,38 @@ describe('productGraph', () => {
   it('pairs an automaton state only with system states its label holds of', () => {
     const sys = explicitSystem(2, [0b01, 0b10], [{ from: 0, to: 1, fair: 0 }, { from: 1, to: 1, fair: 0 }], [0])
     const aut = ltlToAutomaton(until(p, q))
-    const g = productGraph(sys, aut)
-    findAcceptingLasso(g, g.allMarks)
-    for (let id = 0; id < g.size; id++) {
-      const { state, automaton } = g.decode(id)
-      const a = sys.atoms(state)
-      expect(((a & aut.mustTrue[automaton]) ^ aut.mustTrue[automaton]) | (a & aut.mustFalse[automaton])).toBe(0)
+    // Both numberings: dense (the system says how many states it has) and hashed (it does not).
+    for (const s of [sys, { ...sys, states: undefined }]) {
+      const g = productGraph(s, aut)
+      expect(g.dense).toBe(s.states !== undefined)
+      // Every node reachable from the initial nodes, found by a plain search of the graph.
+      const seen = new Set(g.initial()), todo = [...seen]
+      while (todo.length > 0) {
+        const to: number[] = [], marks: number[] = []
+        g.successors(todo.pop()!, to, marks)
+        for (const w of to) if (!seen.has(w)) { seen.add(w); todo.push(w) }
+      }
+      expect(seen.size).toBeGreaterThan(1)
+      for (const id of seen) {
+        const { state, automaton } = g.decode(id)
+        const a = sys.atoms(state)
+        expect(((a & aut.mustTrue[automaton]) ^ aut.mustTrue[automaton]) | (a & aut.mustFalse[automaton])).toBe(0)
+      }
     }
+  })
+
+  it('dense and hashed numberings give the same verdicts, node counts and lassos on 300 generated systems', () => {
+    const r = new Random(77)
+    let violated = 0
+    for (let t = 0; t < 300; t++) {
+      const sys = randomSystem(r, 2, 6, r.int(3))
+      const f = randomLtl(r, 1 + r.int(3), 2)
+      const dense = checkLtl(sys, f)
+      const hashed = checkLtl({ ...sys, states: undefined }, f)
+      expect(dense, show(f)).toEqual(hashed)
+      if (dense.holds === false) violated++
+    }
+    expect(violated).toBeGreaterThan(30)
+    expect(violated).toBeLessThan(270)
   })
 })

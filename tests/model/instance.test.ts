@@ -128,6 +128,39 @@ describe('eventually synchronous timing', () => {
       })
     }
   })
+  it('a tick description says GST exactly in the tick that sets the flag', () => {
+    // Oracle: the `stable` flag of the two states in the canonical form (semantics.md).
+    const inst = instanceOf(counter('eventually synchronous(delay: 1, idle: 2)', 2), 1)
+    const r = explore(inst)
+    const src = new Uint32Array(inst.words)
+    let marked = 0
+    for (let k = 0; k < r.states; k++) {
+      r.store.get(k, src)
+      const was = JSON.parse(canonicalState(inst, src, 0)).stable
+      // Successors are copied first: describeTick enumerates successors itself.
+      const next: Uint32Array[] = []
+      inst.successors(src, 0, (dst) => { next.push(dst.slice()) })
+      for (const dst of next) {
+        const now = JSON.parse(canonicalState(inst, dst, 0)).stable
+        const tick = inst.describeTick(src, 0, dst, 0, 1)
+        expect(tick.gst === true).toBe(was === 0 && now === 1)
+        if (tick.gst) marked++
+      }
+    }
+    expect(marked).toBeGreaterThan(0)
+  })
+
+  it('no tick says GST under synchronous timing', () => {
+    const inst = instanceOf(counter('synchronous(delay: 1, idle: 2)', 2), 1)
+    const r = explore(inst)
+    const src = new Uint32Array(inst.words)
+    for (let k = 0; k < r.states; k++) {
+      r.store.get(k, src)
+      const next: Uint32Array[] = []
+      inst.successors(src, 0, (dst) => { next.push(dst.slice()) })
+      for (const dst of next) expect(inst.describeTick(src, 0, dst, 0, 1).gst).toBeUndefined()
+    }
+  })
 })
 
 describe('initial states', () => {

@@ -1,0 +1,282 @@
+// The fair state graph that the temporal product reads: every edge of an explored instance with
+// its fairness marks (semantics.md). It is recorded during the one exploration pass: states are
+// numbered breadth-first, so the sources come in index order and each row is appended whole, in
+// chunked typed arrays. Above a size budget (or when asked) nothing is stored and each row is
+// recomputed from the successor function when the product asks for it: slower, but the memory is
+// the store's alone.
+import type { System } from '../logic/product'
+import type { Instance } from '../model/instance'
+import { channelEmpty, isCrashed, isStable, type StateTerm } from '../model/observe'
+import { ChunkedInt32 } from './chunked'
+import type { EdgeRecorder, ExploreResult } from './reach'
+import type { StateStore } from './stateset'
+
+/**
+ * Fairness sets (semantics.md) as transition marks: bit i, process i steps or is crashed; then one
+ * bit per channel j->i: i is crashed, or the channel is empty at the source, or i receives from it
+ * in the tick; last, under eventually synchronous, the edge ends in a stable state.
+ */
+export interface FairMarks {
+  fairnessSets: number
+  /** The marks every edge out of this source carries (crashes and empty channels). */
+  sourceMarks(src: Uint32Array, off: number): number
+  /** The marks of one edge, given its source marks and what `successors` reported. */
+  edgeMarks(base: number, dst: Uint32Array, dstOff: number, stepped: number, receivedFrom: number): number
+}
+
+/** The fairness marks of the instance's edges; see `FairMarks`. */
+export function fairMarks(inst: Instance): FairMarks {
+  const n = inst.n
+  const crashed = Array.from({ length: n }, (_, i) => isCrashed(inst, i))
+  const channels: { i: number; bit: number; index: number; test: (w: Uint32Array, o: number) => boolean }[] = []
+  for (let j = 0; j < n; j++) {
+    for (let i = 0; i < n; i++) {
+      // Channel index of j->i as the instance numbers it (see Instance.channelCount).
+      if (i !== j) channels.push({ i, bit: n + channels.length, index: j * (n - 1) + (i < j ? i : i - 1), test: channelEmpty(inst, j, i) })
+    }
+  }
+  // The mark of the channel with each index, so an edge reads only the channels that delivered.
+  const markOfIndex = new Int32Array(Math.max(1, channels.length))
+  for (const c of channels) markOfIndex[c.index] = 1 << c.bit
+  const stab = inst.protocol.timing.kind === 'eventually synchronous' ? isStable(inst) : null
+  const fairnessSets = n + channels.length + (stab ? 1 : 0)
+  return {
+    fairnessSets,
+    sourceMarks(src, off) {
+      let base = 0
+      for (let i = 0; i < n; i++) if (crashed[i](src, off)) base |= 1 << i
+      for (const c of channels) if ((base >> c.i) & 1 || c.test(src, off)) base |= 1 << c.bit
+      return base
+    },
+    edgeMarks(base, dst, dstOff, stepped, receivedFrom) {
+      let m = base | stepped
+      for (let rest = receivedFrom; rest !== 0; rest &= rest - 1) m |= markOfIndex[31 - Math.clz32(rest & -rest)]
+      for (let i = 0; i < n; i++) if (!((m >> i) & 1) && crashed[i](dst, dstOff)) m |= 1 << i
+      if (stab && stab(dst, dstOff)) m |= 1 << (fairnessSets - 1)
+      return m
+    },
+  }
+}
+
+/**
+ * The distinct (target, marks) pairs of one row, first occurrence first: an edge that reaches the
+ * same target with other marks (other processes stepping) is a separate edge. Open addressing
+ * with slots invalidated by a stamp, so a new row costs nothing.
+ */
+class RowSet {
+  private targets = new Int32Array(64)
+  private marks = new Int32Array(64)
+  private stamps = new Int32Array(64)
+  private stamp = 1
+  private size = 0
+
+  reset(): void {
+    this.stamp++
+    this.size = 0
+  }
+
+  /** True when (t, m) is new in this row. */
+  add(t: number, m: number): boolean {
+    let mask = this.targets.length - 1
+    let slot = (Math.imul(t, 0x9e3779b1) ^ Math.imul(m, 0x85ebca6b)) >>> 7 & mask
+    while (this.stamps[slot] === this.stamp) {
+      if (this.targets[slot] === t && this.marks[slot] === m) return false
+      slot = (slot + 1) & mask
+    }
+    if ((this.size + 1) * 2 > this.targets.length) {
+      this.grow()
+      mask = this.targets.length - 1
+      slot = (Math.imul(t, 0x9e3779b1) ^ Math.imul(m, 0x85ebca6b)) >>> 7 & mask
+      while (this.stamps[slot] === this.stamp) slot = (slot + 1) & mask
+    }
+    this.targets[slot] = t
+    this.marks[slot] = m
+    this.stamps[slot] = this.stamp
+    this.size++
+    return true
+  }
+
+  private grow(): void {
+    const { targets, marks, stamps, stamp } = this
+    this.targets = new Int32Array(targets.length * 2)
+    this.marks = new Int32Array(targets.length * 2)
+    this.stamps = new Int32Array(targets.length * 2)
+    this.stamp = 1
+    const mask = this.targets.length - 1
+    for (let k = 0; k < targets.length; k++) {
+      if (stamps[k] !== stamp) continue
+      let slot = (Math.imul(targets[k], 0x9e3779b1) ^ Math.imul(marks[k], 0x85ebca6b)) >>> 7 & mask
+      while (this.stamps[slot] === 1) slot = (slot + 1) & mask
+      this.targets[slot] = targets[k]
+      this.marks[slot] = marks[k]
+      this.stamps[slot] = 1
+    }
+  }
+}
+
+/**
+ * The recorded graph: the successors of s are cells start[s] .. start[s+1]) of `target`, each with
+ * its marks, in the order the successor function first produced them.
+ */
+export interface FairGraph {
+  start: ChunkedInt32
+  target: ChunkedInt32
+  marks: ChunkedInt32
+  fairnessSets: number
+  /** Bytes held by the three arrays. */
+  bytes: number
+}
+
+/** Edges recorded before the recorder gives up and the product recomputes rows instead (8 bytes each). */
+export const RECORD_EDGE_BUDGET = 48_000_000
+
+/**
+ * Records the fair graph while `explore` runs (pass it as `ExploreOptions.edges`). `graph()` is
+ * the graph once the exploration is complete, or null when the budget was exceeded.
+ */
+export class FairGraphRecorder implements EdgeRecorder {
+  private readonly fm: FairMarks
+  private start: ChunkedInt32 | null = new ChunkedInt32()
+  private target = new ChunkedInt32()
+  private marks = new ChunkedInt32()
+  private readonly row = new RowSet()
+  private base = 0
+
+  /** `budget`: edges kept at most; 0 records nothing (rows are then recomputed on demand). */
+  constructor(inst: Instance, private readonly budget = RECORD_EDGE_BUDGET) {
+    this.fm = fairMarks(inst)
+    if (budget <= 0) this.abandon()
+  }
+
+  /** Whether the budget was exceeded (nothing is kept then). */
+  get abandoned(): boolean {
+    return this.start === null
+  }
+
+  beginSource(index: number, src: Uint32Array): void {
+    if (!this.start) return
+    // Rows arrive in index order (breadth-first numbering); an out-of-order source is a bug.
+    if (index !== this.start.length) throw new Error(`internal error: fair graph row ${index} out of order`)
+    if (this.target.length > this.budget) { this.abandon(); return }
+    this.start.push(this.target.length)
+    this.base = this.fm.sourceMarks(src, 0)
+    this.row.reset()
+  }
+
+  edge(target: number, dst: Uint32Array, stepped: number, receivedFrom: number): void {
+    if (!this.start) return
+    const m = this.fm.edgeMarks(this.base, dst, 0, stepped, receivedFrom)
+    if (!this.row.add(target, m)) return
+    this.target.push(target)
+    this.marks.push(m)
+  }
+
+  /** The graph of a complete exploration with `states` states, or null when abandoned. */
+  graph(states: number): FairGraph | null {
+    const start = this.start
+    if (!start) return null
+    if (start.length !== states) throw new Error(`internal error: fair graph has ${start.length} rows for ${states} states`)
+    start.push(this.target.length)
+    return { start, target: this.target, marks: this.marks, fairnessSets: this.fm.fairnessSets, bytes: start.bytes + this.target.bytes + this.marks.bytes }
+  }
+
+  private abandon(): void {
+    this.start = null
+    this.target = new ChunkedInt32()
+    this.marks = new ChunkedInt32()
+  }
+}
+
+/** Store indices of the initial states, each once, in the order the instance lists them. */
+function initialIds(inst: Instance, store: StateStore): number[] {
+  const W = inst.words
+  const initial: number[] = []
+  const init = inst.initialStates()
+  for (let off = 0; off < init.length; off += W) {
+    const k = store.lookup(init, off)
+    if (k >= 0 && !initial.includes(k)) initial.push(k)
+  }
+  return initial
+}
+
+/**
+ * The system the temporal product reads, for one assignment's compiled atoms: rows of the recorded
+ * graph `g`, or, when `g` is null, rows recomputed on demand from the successor function (the same
+ * edges in the same order).
+ */
+export function systemOf(inst: Instance, r: ExploreResult, g: FairGraph | null, atoms: StateTerm[]): System {
+  const W = inst.words
+  const store = r.store
+  const data = store.data
+  const states = store.size
+  // Every reachable state's atoms, computed now: an atom that faults (a division by zero) on any
+  // reachable state throws here, before the search, as the runner expects.
+  const masks = new Int32Array(states)
+  for (let s = 0; s < states; s++) {
+    let m = 0
+    for (let k = 0; k < atoms.length; k++) if (atoms[k](data, s * W)) m |= 1 << k
+    masks[s] = m
+  }
+  const atomsOf = (s: number): number => masks[s]
+  const initial = initialIds(inst, store)
+  const base: Omit<System, 'successors'> = { fairnessSets: g ? g.fairnessSets : fairMarks(inst).fairnessSets, initial: () => initial, atoms: atomsOf, states }
+  if (g) {
+    const { start, target, marks } = g
+    return {
+      ...base,
+      successors(s, to, fair) {
+        for (let k = start.get(s), e = start.get(s + 1); k < e; k++) {
+          to.push(target.get(k))
+          fair.push(marks.get(k))
+        }
+      },
+    }
+  }
+  const fm = fairMarks(inst)
+  const row = new RowSet()
+  const src = new Uint32Array(W)
+  return {
+    ...base,
+    successors(s, to, fair) {
+      store.get(s, src, 0)
+      const sm = fm.sourceMarks(src, 0)
+      row.reset()
+      inst.successors(src, 0, (dst, stepped, receivedFrom) => {
+        const t = store.lookup(dst, 0)
+        if (t < 0) return false
+        const m = fm.edgeMarks(sm, dst, 0, stepped, receivedFrom)
+        if (row.add(t, m)) { to.push(t); fair.push(m) }
+        return false
+      })
+    },
+  }
+}
+
+/**
+ * The ticks of a lasso (states `path`, the last equal to path[loopStart]). Each edge of the loop is
+ * told as the tick that carries the marks the fair cycle used, so that the loop shown is fair:
+ * processes that must step infinitely often are seen stepping.
+ */
+export function lassoTicks(inst: Instance, store: StateStore, path: number[], loopStart: number, cycleMarks: number[]) {
+  const W = inst.words
+  const fm = fairMarks(inst)
+  const src = new Uint32Array(W)
+  const data = store.data
+  const ticks = []
+  for (let i = 0; i + 1 < path.length; i++) {
+    let want: { stepped: number; receivedFrom: number } | undefined
+    if (i >= loopStart) {
+      const need = cycleMarks[i - loopStart]
+      store.get(path[i], src, 0)
+      const base = fm.sourceMarks(src, 0)
+      const to = path[i + 1]
+      inst.successors(src, 0, (dst, stepped, receivedFrom) => {
+        if (store.lookup(dst, 0) !== to || fm.edgeMarks(base, dst, 0, stepped, receivedFrom) !== need) return false
+        want = { stepped, receivedFrom }
+        return true
+      })
+    }
+    ticks.push(inst.describeTick(data, path[i] * W, data, path[i + 1] * W, i + 1, want))
+  }
+  return ticks
+}

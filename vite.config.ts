@@ -1,4 +1,5 @@
 import { defineConfig } from 'vite'
+import { VitePWA } from 'vite-plugin-pwa'
 
 // Cross-origin isolation lets the page share a stop flag with the busy kernel worker
 // (SharedArrayBuffer); without these headers the workbench still works and stops a check by
@@ -12,6 +13,21 @@ const isolation = {
 export default defineConfig({
   base: './',
   root: '.',
+  // Offline after one visit: a service worker precaches the whole build (page, kernel worker,
+  // styles, fonts), so the workbench reopens and runs checks with no network.
+  plugins: [
+    VitePWA({
+      registerType: 'autoUpdate',
+      injectRegister: 'script',
+      manifest: false,
+      workbox: {
+        globPatterns: ['**/*.{html,js,css,woff2,woff,ttf,svg,wasm}'],
+        maximumFileSizeToCacheInBytes: 16 * 1024 * 1024,
+        cleanupOutdatedCaches: true,
+        navigateFallback: 'index.html',
+      },
+    }),
+  ],
   worker: { format: 'es' },
   build: { outDir: 'dist', target: 'es2022' },
   server: { headers: isolation },

@@ -4,11 +4,11 @@
 // never keeps a copy of the text that could drift from the notebook.
 import type { CheckRow, Progress } from '../../kernels/result'
 import { button, el } from './dom'
-import { atomColour, counterexampleSvg } from './diagram'
+import { atomColour, counterexampleSvg, filledIn } from './diagram'
 import { BlockEditor, type NotebookDiagnostic } from './editor'
 import { propertiesToTex } from './formula-tex'
 import { renderProse, toFragment } from './markdown'
-import { CAUTION, findingsMarkup } from './results'
+import { findingsMarkdown, findingsMarkup } from './results'
 import type { Segment, SegmentKind } from './segments'
 import { texToHtml } from './tex'
 
@@ -55,7 +55,34 @@ function tools(host: BlockHost, view: BlockView, kind: SegmentKind, name: () => 
     add)
   bar.setAttribute('aria-label', 'block controls')
   bar.addEventListener('focusin', () => bar.setAttribute('aria-label', `controls of the ${label()}`))
+  roving(bar)
   return bar
+}
+
+/**
+ * Makes a toolbar one tab stop: the arrow keys (and Home, End) move between its controls, and Tab
+ * leaves it. The control focused last is the one Tab comes back to.
+ */
+export function roving(bar: HTMLElement): void {
+  bar.setAttribute('role', 'toolbar')
+  const items = () => [...bar.querySelectorAll<HTMLElement>('button, summary')].filter((b) => b.getClientRects().length > 0 || b.tagName === 'SUMMARY')
+  const settle = (current: HTMLElement | undefined) => {
+    for (const b of bar.querySelectorAll<HTMLElement>('button, summary')) b.tabIndex = b === current ? 0 : -1
+  }
+  // Until the first focus, the first control is the tab stop.
+  queueMicrotask(() => settle(bar.querySelector<HTMLElement>('button, summary') ?? undefined))
+  bar.addEventListener('focusin', (e) => { if (e.target instanceof HTMLElement && e.target.matches('button, summary')) settle(e.target) })
+  bar.addEventListener('keydown', (e) => {
+    const list = items()
+    const i = list.indexOf(document.activeElement as HTMLElement)
+    if (i < 0) return
+    const next = e.key === 'ArrowRight' || e.key === 'ArrowDown' ? (i + 1) % list.length
+      : e.key === 'ArrowLeft' || e.key === 'ArrowUp' ? (i - 1 + list.length) % list.length
+        : e.key === 'Home' ? 0 : e.key === 'End' ? list.length - 1 : -1
+    if (next < 0) return
+    e.preventDefault()
+    list[next].focus()
+  })
 }
 
 /** A prose block: Markdown shown rendered; editing swaps in a text area until done. */
@@ -135,37 +162,53 @@ export class CheckLineView {
   private stopButton: HTMLButtonElement
   private shownRows: CheckRow[] | null = null
   private shownFresh = false
+  private shownStopped: string | null = null
   private staleNote = el('p', { class: 'stale-note' }, 'Out of date: the check, its protocol or a property it uses changed since this ran.')
 
   constructor(host: BlockHost, readonly check: number, source: string) {
     this.runButton = button('check it', () => host.runCheck(this.check), { class: 'run', 'aria-label': `run: ${source}`, 'aria-keyshortcuts': 'Alt+Shift+C', title: 'Alt-Shift-C in the check editor runs its checks' })
     this.stopButton = button('stop', () => host.stop(), { class: 'stop', 'aria-label': `stop: ${source}`, hidden: true })
-    this.root = el('div', { class: 'check-line', 'data-check': String(check) },
+    this.root = el('div', { class: 'check-line', 'data-check': String(check), id: `check-${check}` },
       el('div', { class: 'check-head' }, el('code', { class: 'check-source' }, source), this.runButton, this.stopButton, this.status),
       this.staleNote, this.findings)
     this.staleNote.hidden = true
   }
 
   /** Shows rows (or nothing yet), fresh or out of date. */
-  show(rows: CheckRow[] | null, fresh: boolean): void {
+  show(rows: CheckRow[] | null, fresh: boolean, stopped: string | null = null): void {
     // Every analysis re-shows every line; drawing the same rows again would only cost time.
-    if (rows === this.shownRows && fresh === this.shownFresh && rows) return
+    if (rows === this.shownRows && fresh === this.shownFresh && stopped === this.shownStopped && rows) return
     this.shownRows = rows
     this.shownFresh = fresh
-    this.root.classList.toggle('stale', !!rows && !fresh)
+    this.shownStopped = stopped
+    // A stopped check is not out of date: its inputs did not change, it did not finish.
+    this.root.classList.toggle('stale', !!rows && !fresh && !stopped)
     this.root.classList.toggle('fresh', !!rows && fresh)
-    this.staleNote.hidden = !rows || fresh
+    this.root.classList.toggle('stopped', !!rows && !!stopped)
+    this.staleNote.hidden = !rows || fresh || !!stopped
     if (!rows) {
       this.findings.replaceChildren()
       if (!this.root.classList.contains('running')) this.status.textContent = 'not checked yet'
       return
     }
-    if (!this.root.classList.contains('running')) this.status.textContent = fresh ? 'checked' : 'out of date'
-    this.findings.replaceChildren(toFragment(findingsMarkup(rows)), el('p', { class: 'caution' }, CAUTION))
+    if (!this.root.classList.contains('running')) this.status.textContent = stopped ? stoppedWords(rows) : fresh ? 'checked' : 'out of date'
+    const copy = button('copy the table as Markdown', () => void this.copyTable(rows), { class: 'copy-md', 'aria-label': 'copy this result table as Markdown' })
+    this.findings.replaceChildren(toFragment(findingsMarkup(rows, { unfinished: stopped ?? undefined })), el('div', { class: 'findings-tools' }, copy))
     for (const tr of this.findings.querySelectorAll<HTMLElement>('tr[data-tick]')) tr.tabIndex = 0
     for (const w of this.findings.querySelectorAll<HTMLElement>('.witness[data-row]')) {
       const row = rows.find((r) => String(r.row) === w.dataset.row)
       if (row?.counterexample?.atoms?.length) w.querySelector('.witness-message')!.after(this.atomChooser(row, w.querySelector('.diagram')!))
+    }
+  }
+
+  private async copyTable(rows: CheckRow[]): Promise<void> {
+    const text = findingsMarkdown(rows)
+    try { await navigator.clipboard.writeText(text); this.status.textContent = 'table copied as Markdown' } catch {
+      // No clipboard permission: show the text selected, for the user to copy.
+      const area = el('textarea', { class: 'copy-text', readonly: true, 'aria-label': 'the result table as Markdown' })
+      area.value = text
+      this.findings.append(area)
+      area.select()
     }
   }
 
@@ -178,9 +221,9 @@ export class CheckLineView {
       box.addEventListener('change', () => {
         if (box.checked) chosen.add(i)
         else chosen.delete(i)
-        diagram.replaceChildren(toFragment(counterexampleSvg(cx, row.processes, { atoms: [...chosen] })))
+        diagram.replaceChildren(toFragment(counterexampleSvg(cx, row.processes, { atoms: [...chosen], assignment: row.assignment })))
       })
-      return el('label', { class: 'atom-choice' }, box, el('span', { class: 'swatch', style: `background:${atomColour(i)}` }), a.text)
+      return el('label', { class: 'atom-choice' }, box, el('span', { class: 'swatch', style: `background:${atomColour(i)}` }), filledIn(a.text, row.assignment))
     })
     return el('fieldset', { class: 'atom-chooser' }, el('legend', {}, 'shade where these hold'), ...boxes)
   }
@@ -212,6 +255,12 @@ export class CheckLineView {
   }
 
   note(text: string): void { this.status.textContent = text }
+}
+
+/** The status of a stopped check: "stopped after N states: inconclusive". */
+export function stoppedWords(rows: CheckRow[]): string {
+  const states = rows.reduce((n, r) => n + r.states, 0)
+  return `stopped after ${states.toLocaleString('en-US')} states: inconclusive`
 }
 
 /** A formal block: its editor, diagnostics list, and what its kind adds. */

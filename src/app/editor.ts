@@ -2,8 +2,9 @@
 // (one grammar for both, so they never disagree), number lines as notebook lines (diagnostics and
 // reasons speak in notebook lines), and show the kernel's diagnostics as lint when the page pushes
 // them: the editors never ask the kernel themselves.
-import { defaultKeymap, history, historyKeymap, indentWithTab } from '@codemirror/commands'
-import { HighlightStyle, LRLanguage, bracketMatching, indentOnInput, syntaxHighlighting } from '@codemirror/language'
+import { defaultKeymap, history, historyKeymap, indentLess, indentMore } from '@codemirror/commands'
+import { HighlightStyle, LRLanguage, bracketMatching, indentOnInput, indentService, indentUnit, syntaxHighlighting } from '@codemirror/language'
+import { highlightSelectionMatches, search, searchKeymap } from '@codemirror/search'
 import { setDiagnostics, type Diagnostic as LintDiagnostic } from '@codemirror/lint'
 import { Compartment, EditorState, type Extension } from '@codemirror/state'
 import { EditorView, drawSelection, highlightActiveLine, keymap, lineNumbers } from '@codemirror/view'
@@ -44,32 +45,59 @@ export const twofoldLanguage = LRLanguage.define({
       }),
     ],
   }),
-  languageData: { commentTokens: { line: '//' } },
+  // A line that is only a closing brace is re-indented as it is typed (indentOnInput), so it dedents.
+  languageData: { commentTokens: { line: '//' }, indentOnInput: /^\s*[}\]]$/ },
 })
+
+/** The height of the page's sticky header, which covers the top of the viewport. */
+function headerHeight(): number {
+  return document.querySelector('.topbar')?.getBoundingClientRect().height ?? 0
+}
 
 /** Our colours: ink on paper, keywords in a deep green, temporal operators in plum. */
 const highlight = HighlightStyle.define([
-  { tag: t.definitionKeyword, color: '#2f5d50', fontWeight: '600' },
-  { tag: t.keyword, color: '#2f5d50' },
-  { tag: t.controlKeyword, color: '#7a3f7c', fontWeight: '600' },
-  { tag: t.operatorKeyword, color: '#7a3f7c' },
-  { tag: [t.atom, t.bool, t.modifier], color: '#8a5a1e' },
-  { tag: t.number, color: '#8a5a1e' },
-  { tag: t.special(t.variableName), color: '#8a5a1e' },
-  { tag: t.lineComment, color: '#8b877c', fontStyle: 'italic' },
-  { tag: t.definition(t.name), color: '#1f1f1d', fontWeight: '700' },
-  { tag: t.definition(t.variableName), color: '#1f1f1d', textDecoration: 'underline 1px #c9c3b3' },
-  { tag: t.propertyName, color: '#3b4f78' },
+  { tag: t.definitionKeyword, color: 'var(--green)', fontWeight: '600' },
+  { tag: t.keyword, color: 'var(--green)' },
+  { tag: t.controlKeyword, color: 'var(--plum)', fontWeight: '600' },
+  { tag: t.operatorKeyword, color: 'var(--plum)' },
+  { tag: [t.atom, t.bool, t.modifier], color: 'var(--ochre)' },
+  { tag: t.number, color: 'var(--ochre)' },
+  { tag: t.special(t.variableName), color: 'var(--ochre)' },
+  { tag: t.lineComment, color: 'var(--ink-3)', fontStyle: 'italic' },
+  { tag: t.definition(t.name), color: 'var(--ink)', fontWeight: '700' },
+  { tag: t.definition(t.variableName), color: 'var(--ink)', textDecoration: 'underline 1px var(--rule)' },
+  { tag: t.propertyName, color: 'var(--navy)' },
 ])
 
 const theme = EditorView.theme({
   '&': { fontSize: '14px', backgroundColor: 'transparent' },
-  '.cm-content': { fontFamily: '"IBM Plex Mono", "DejaVu Sans Mono", Menlo, monospace', padding: '6px 0' },
-  '.cm-gutters': { backgroundColor: 'transparent', border: 'none', color: '#a9a496' },
+  '.cm-content': { fontFamily: '"IBM Plex Mono", "DejaVu Sans Mono", Menlo, monospace', padding: '6px 0', caretColor: 'var(--ink)' },
+  '.cm-gutters': { backgroundColor: 'transparent', border: 'none', color: 'var(--ink-3)' },
   '.cm-activeLine': { backgroundColor: 'transparent' },
-  '&.cm-focused .cm-activeLine': { backgroundColor: '#f4efe0' },
+  '&.cm-focused .cm-activeLine': { backgroundColor: 'var(--paper-2)' },
   '&.cm-focused': { outline: 'none' },
+  '.cm-cursor': { borderLeftColor: 'var(--ink)' },
+  '.cm-panels': { backgroundColor: 'var(--paper-2)', color: 'var(--ink)' },
+  '.cm-textfield': { backgroundColor: 'var(--card)', color: 'var(--ink)', border: '1px solid var(--rule)' },
+  '.cm-button': { backgroundImage: 'none', backgroundColor: 'var(--paper-2)', color: 'var(--ink)' },
+  '.cm-searchMatch': { backgroundColor: 'var(--lit)' },
   '.cm-lineNumbers .cm-gutterElement': { minWidth: '3ch', paddingRight: '10px', fontSize: '12px' },
+})
+
+/**
+ * Indentation by braces: a line is indented one unit deeper than the line above when that line
+ * opens a brace, and a line that starts with a closing brace dedents. Simple and predictable.
+ */
+const braceIndent = indentService.of((context, pos) => {
+  // The line being indented (after a simulated break, the part after it), and the line above it.
+  const line = context.lineAt(pos, 1)
+  if (line.from === 0) return 0
+  const above = context.lineAt(line.from - 1, -1)
+  const base = /^\s*/.exec(above.text)![0].replace(/\t/g, '  ').length
+  const opens = (above.text.replace(/\/\/.*$/, '').match(/[{[(]/g) ?? []).length - (above.text.replace(/\/\/.*$/, '').match(/[}\])]/g) ?? []).length
+  const here = context.textAfterPos(pos)
+  const closes = /^\s*[}\])]/.test(here) ? 1 : 0
+  return Math.max(0, base + context.unit * (Math.max(0, opens) - closes))
 })
 
 /** A diagnostic in notebook offsets, as the kernel reports it. */
@@ -104,7 +132,13 @@ export class BlockEditor {
       syntaxHighlighting(highlight),
       theme,
       EditorView.lineWrapping,
-      keymap.of([...(hooks.keys ?? []), indentWithTab, ...defaultKeymap, ...historyKeymap]),
+      indentUnit.of('  '),
+      braceIndent,
+      search({ top: true }),
+      highlightSelectionMatches(),
+      // No Tab binding: Tab moves focus through the page. Indenting is Enter, a typed `}`, Mod-] and Mod-[.
+      keymap.of([...(hooks.keys ?? []), { key: 'Mod-]', run: indentMore }, { key: 'Mod-[', run: indentLess }, ...searchKeymap, ...defaultKeymap, ...historyKeymap]),
+      EditorView.scrollMargins.of(() => ({ top: headerHeight() + 12, bottom: 24 })),
       EditorView.contentAttributes.of({ 'aria-label': hooks.label }),
       EditorView.updateListener.of((u) => { if (u.docChanged) hooks.onChange(u.state.doc.toString()) }),
     ]
@@ -131,10 +165,10 @@ export class BlockEditor {
     this.view.dispatch(setDiagnostics(this.view.state, lint))
   }
 
-  /** Puts the cursor at a content offset and brings it into view. */
-  jumpTo(offset: number): void {
+  /** Puts the cursor at a content offset and brings it into view below the sticky header. */
+  jumpTo(offset: number, scroll = true): void {
     const pos = Math.min(Math.max(offset, 0), this.view.state.doc.length)
-    this.view.dispatch({ selection: { anchor: pos }, scrollIntoView: true })
+    this.view.dispatch({ selection: { anchor: pos }, effects: scroll ? EditorView.scrollIntoView(pos, { y: 'center' }) : [] })
     this.view.focus()
   }
 

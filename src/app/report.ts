@@ -8,11 +8,15 @@ import { DIAGRAM_CSS } from './diagram'
 import { propertiesToTex } from './formula-tex'
 import { html, raw, type Markup } from './html'
 import { CAUTION, findingsMarkup } from './results'
+import { summaryMarkup } from './summary'
+import { titleOf } from './title'
 import { contentOf, type Segment } from './segments'
 import { texToHtml } from './tex'
 
 /** The findings of one check line, as the page shows them. */
 export interface ReportCheck {
+  /** Index of the check in the notebook. */
+  check: number
   source: string
   rows: CheckRow[] | null
   /** False when the inputs changed since the rows were computed. */
@@ -37,7 +41,7 @@ body{margin:0;background:#fbfaf6;color:#24231f;font:17px/1.55 Georgia,"Iowan Old
 main{max-width:52rem;margin:0 auto;padding:2.5rem 1.5rem 4rem}
 header.report{border-bottom:1px solid #d9d3c3;margin-bottom:2rem;padding-bottom:1rem}
 header.report h1{font-weight:normal;font-size:2rem;margin:0 0 .3rem}
-.meta{font-size:.85rem;color:#6f6a5e}
+.meta{font-size:.85rem;color:#5e594e}
 .meta code{font-size:.8rem;word-break:break-all}
 pre.formal{background:#f3efe3;border-left:3px solid #2f5d50;padding:.7rem 1rem;overflow-x:auto;font:13px/1.45 "DejaVu Sans Mono",Menlo,monospace;white-space:pre-wrap}
 .kind{display:block;font:12px/1 Georgia,serif;letter-spacing:.08em;text-transform:uppercase;color:#2f5d50;margin-bottom:.4rem}
@@ -47,26 +51,33 @@ pre.formal{background:#f3efe3;border-left:3px solid #2f5d50;padding:.7rem 1rem;o
 .stale{color:#8a5a1e;font-style:italic}
 table{border-collapse:collapse;margin:.6rem 0;font-size:.9rem}
 th,td{border-bottom:1px solid #e2dccd;padding:.3rem .6rem;text-align:left;vertical-align:top}
-caption{text-align:left;color:#6f6a5e;font-size:.85rem;padding-bottom:.2rem}
+caption{text-align:left;color:#5e594e;font-size:.85rem;padding-bottom:.2rem}
 .verdict .word{font-weight:bold}
 .v-holds .word{color:#2f5d50}.v-violated .word{color:#a33b20}.v-inconclusive .word{color:#8a5a1e}.v-error .word{color:#6f6a5e}
-.counts,.quiet{color:#6f6a5e;font-size:.8rem}
+.counts,.quiet{color:#5e594e;font-size:.8rem}
 .alarm{color:#a33b20;font-weight:bold}
-.certificate{margin:.6rem 0}.statement{overflow-x:auto}summary{color:#6f6a5e;font-size:.85rem}
+.certificate{margin:.6rem 0}.statement{overflow-x:auto}summary{color:#5e594e;font-size:.85rem}
 .cert-title{font-weight:bold}
 .witness-body{display:flex;flex-wrap:wrap;gap:1rem;align-items:flex-start}
 .ticks td div{margin:.1rem 0}
+.summary{margin:1rem 0 0}.summary-counts{font-weight:bold;margin:.3rem 0}.summary-links{margin:.2rem 0;padding-left:1.2rem;font-size:.9rem}
+.shape{font-size:.85em}.v-model-error .word{color:#a33b20}.not-run{color:#5e584b}
+a{color:#2f5d50}
+@media print{body{background:#fff;font-size:11pt}main{max-width:none;padding:0}pre.formal,.witness,table,.certificate{break-inside:avoid}a{color:inherit;text-decoration:none}}
 .caution{border-left:3px solid #b07a2a;padding:.4rem .8rem;color:#5e584b;font-size:.85rem;background:#f6f0e0}
 ` + DIAGRAM_CSS
 
 /** Builds the report's HTML text. */
 export function buildReport(input: ReportInput): string {
   const parts: Markup[] = []
+  // The title once: the notebook's first heading, when it says the title, gives way to the report's.
+  const firstProse = input.segments.find((s) => s.kind === 'prose')
   input.segments.forEach((seg, i) => {
     const content = contentOf(input.text, seg)
     if (seg.kind === 'front') return
     if (seg.kind === 'prose') {
-      parts.push(raw(input.prose(content)))
+      const shown = seg === firstProse && titleOf(content) === input.title ? content.replace(/^\s{0,3}#[ \t]+.*\n?/m, '') : content
+      parts.push(raw(input.prose(shown)))
       return
     }
     parts.push(html`<pre class="formal"><span class="kind">${seg.kind}</span>${content}</pre>`)
@@ -83,9 +94,11 @@ export function buildReport(input: ReportInput): string {
           parts.push(raw(findingsMarkup(c.rows, { mathmlOnly: true })))
         }
       }
-      parts.push(html`<p class="caution">${CAUTION}</p>`)
     }
   })
+  // The caution is said once: inside the summary, or on its own when nothing was checked.
+  const tally = summaryMarkup([...input.checks.values()].flat())
+  const summary = raw(tally || html`<p class="caution">${CAUTION}</p>`.text)
   const csp = "default-src 'none'; style-src 'unsafe-inline'; img-src data:"
-  return '<!doctype html>\n' + html`<html lang="en"><head><meta charset="utf-8"><meta http-equiv="Content-Security-Policy" content="${csp}"><meta name="viewport" content="width=device-width, initial-scale=1"><title>${input.title}</title><style>${raw(CSS)}</style></head><body><main><header class="report"><h1>${input.title}</h1><div class="meta">Report made ${input.created.toISOString()} by twofold from a notebook with SHA-256 <code>${input.sha256}</code>.</div></header>${parts}</main></body></html>`.text
+  return '<!doctype html>\n' + html`<html lang="en"><head><meta charset="utf-8"><meta http-equiv="Content-Security-Policy" content="${csp}"><meta name="viewport" content="width=device-width, initial-scale=1"><title>${input.title}</title><style>${raw(CSS)}</style></head><body><main><header class="report"><h1>${input.title}</h1><div class="meta">Report made ${input.created.toISOString()} by twofold from a notebook with SHA-256 <code>${input.sha256}</code>.</div>${summary}</header>${parts}</main></body></html>`.text
 }

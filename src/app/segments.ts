@@ -117,22 +117,31 @@ export function replaceContent(text: string, seg: Segment, content: string): str
   return text.slice(0, seg.contentFrom) + content + text.slice(seg.contentTo)
 }
 
-/** The text that a new block of each kind starts with. Formal blocks start with an empty body. */
-export function newBlockText(kind: Exclude<SegmentKind, 'front'>): string {
+/** The short template a new block of each kind starts with; a check names the notebook's first protocol and property. */
+export function newBlockText(kind: Exclude<SegmentKind, 'front'>, text = ''): string {
   if (kind === 'prose') return '## New section\n\nWrite the argument here.\n\n'
-  return '```' + kind + '\n\n```\n\n'
+  const fence = (body: string) => '```' + kind + '\n' + body + '```\n\n'
+  if (kind === 'protocol') {
+    return fence('protocol lighthouse {\n  timing synchronous(delay: 1, idle: 1)\n  faults crash\n  message flash\n' +
+      '  state seen[peer]: bool = false\n  on flash from q { seen[q] := true }\n  step { broadcast flash }\n}\n')
+  }
+  // Properties and checks start from the names the notebook already has, so they read at once.
+  const protocol = /^\s*protocol\s+([A-Za-z_]\w*)/m.exec(text)?.[1] ?? 'lighthouse'
+  if (kind === 'property') return fence('property steady = forall p: always (alive(p) or crashed(p))\n')
+  const property = /^\s*property\s+([A-Za-z_]\w*)/m.exec(text)?.[1] ?? 'steady'
+  return fence(`check ${protocol}: ${property}\n`)
 }
 
 function withNewline(s: string): string {
   return s.endsWith('\n') ? s : s + '\n'
 }
 
-/** Inserts a new block before segment `index` (or at the end when index equals the count). */
+/** Inserts a new block (a short template of its kind) before segment `index` (or at the end when index equals the count). */
 export function insertBlock(text: string, index: number, kind: Exclude<SegmentKind, 'front'>): string {
   const segs = segment(text)
   let i = Math.min(Math.max(index, 0), segs.length)
   if (i === 0 && segs[0]?.kind === 'front') i = 1
-  const block = newBlockText(kind)
+  const block = newBlockText(kind, text)
   if (i >= segs.length) {
     const base = text.length === 0 ? '' : text.endsWith('\n\n') ? text : withNewline(text) + '\n'
     return base + block
@@ -157,4 +166,17 @@ export function moveBlock(text: string, index: number, direction: -1 | 1): strin
   // Each moved piece must end with a blank line, or it would run into its new neighbour.
   const pad = (s: string) => (s.endsWith('\n\n') ? s : withNewline(s) + '\n')
   return text.slice(0, a.from) + pad(text.slice(b.from, b.to)) + pad(text.slice(a.from, a.to)) + text.slice(b.to)
+}
+
+/** The 1-based line number of an offset in `text`. */
+export function lineAt(text: string, offset: number): number {
+  const starts = lineStarts(text)
+  let lo = 0
+  let hi = starts.length - 1
+  while (lo < hi) {
+    const mid = (lo + hi + 1) >> 1
+    if (starts[mid] <= offset) lo = mid
+    else hi = mid - 1
+  }
+  return lo + 1
 }

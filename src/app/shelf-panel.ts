@@ -2,6 +2,7 @@
 // with them (open, rename, duplicate, delete with undo, new, import). It holds no notebook state of
 // its own; every action goes to the store or back to the workbench.
 import { button, el } from './dom'
+import { ACTION_WINDOW } from './notices'
 import { Shelf, type NotebookSummary, type StoredNotebook } from './store'
 import { titleOf, withTitle } from './title'
 
@@ -16,6 +17,8 @@ export interface ShelfActions {
   imported(file: File): Promise<boolean>
   restoreGuide(): void
   notice(message: string, action?: { label: string; run: () => void }): void
+  /** Offer a text as a `.md` download (a notebook the browser would not keep). */
+  exportText(text: string): void
 }
 
 function when(ms: number): string {
@@ -28,6 +31,8 @@ function when(ms: number): string {
 export class ShelfPanel {
   readonly root: HTMLElement
   private list = el('ul', { class: 'shelf-list' })
+  /** Notebooks deleted but still inside their undo window: kept here, whole, until the delete is stored. */
+  private deleting = new Map<string, { entry: StoredNotebook; timer: number }>()
   private fileInput = el('input', { type: 'file', accept: '.md,.markdown,text/markdown,text/plain', class: 'file-input', 'aria-label': 'choose a Markdown notebook to import' })
 
   constructor(private shelf: Shelf, private actions: ShelfActions) {
@@ -56,7 +61,7 @@ export class ShelfPanel {
       this.list.replaceChildren(el('li', { class: 'quiet' }, `The list could not be read: ${(e as Error)?.message ?? e}`))
       return
     }
-    this.list.replaceChildren(...items.map((n) => this.item(n)))
+    this.list.replaceChildren(...items.filter((n) => !this.deleting.has(n.id)).map((n) => this.item(n)))
   }
 
   private item(n: NotebookSummary): HTMLElement {
@@ -103,18 +108,41 @@ export class ShelfPanel {
     }
   }
 
+  /**
+   * Deletes with undo. The notebook leaves the list at once, but its text stays (here and in
+   * storage) until the undo window has passed; only then is the delete written. Undo is therefore
+   * never a write that could fail, and a delete that storage refuses leaves the notebook listed.
+   */
   private async remove(n: NotebookSummary): Promise<void> {
+    let entry: StoredNotebook | undefined
+    try { entry = await this.shelf.load(n.id) } catch (e) { this.actions.notice(`Could not delete: ${(e as Error)?.message ?? e}`); return }
+    if (!entry) return
+    const kept = entry
+    const timer = window.setTimeout(() => void this.commitDelete(kept), ACTION_WINDOW)
+    this.deleting.set(n.id, { entry: kept, timer })
+    await this.refresh()
+    await this.actions.deleted(kept)
+    this.actions.notice(`Deleted “${n.title}”.`, { label: 'undo', run: () => void this.undoDelete(n.id) })
+  }
+
+  private async undoDelete(id: string): Promise<void> {
+    const pending = this.deleting.get(id)
+    if (!pending) return
+    window.clearTimeout(pending.timer)
+    this.deleting.delete(id)
+    await this.refresh()
+    this.actions.open(id)
+  }
+
+  private async commitDelete(entry: StoredNotebook): Promise<void> {
     try {
-      const entry = await this.shelf.remove(n.id)
-      await this.refresh()
-      if (!entry) return
-      await this.actions.deleted(entry)
-      this.actions.notice(`Deleted “${n.title}”.`, {
-        label: 'undo',
-        run: () => void this.shelf.restore(entry).then(() => this.refresh(), (e) => this.actions.notice(`Could not put it back: ${(e as Error)?.message ?? e}`)),
-      })
+      await this.shelf.remove(entry.id)
+      this.deleting.delete(entry.id)
     } catch (e) {
-      this.actions.notice(`Could not delete: ${(e as Error)?.message ?? e}`)
+      this.deleting.delete(entry.id)
+      await this.refresh()
+      this.actions.notice(`Could not delete “${titleOf(entry.text) ?? 'the notebook'}” (${(e as Error)?.message ?? e}); it is still kept.`,
+        { label: 'save it as .md', run: () => this.actions.exportText(entry.text) })
     }
   }
 }

@@ -4,41 +4,22 @@
 // views. Typing never waits for the kernel: analysis is debounced and runs in its own worker, and
 // results are marked out of date synchronously from the dependencies of the last analysis.
 import type { NotebookModel } from '../../kernels/language/model'
-import type { CheckRow, Report } from '../../kernels/result'
-import { FormalView, ProseView, type BlockHost, type BlockView, CheckLineView } from './blocks'
-import { button, download, el, fileName } from './dom'
-import { ImportRefused, decodeText, importProblems } from './import-file'
-import { Kernel, StoppedError } from './kernel'
-import { renderProse } from './markdown'
-import { buildReport, type ReportCheck } from './report'
-import { deleteBlock, insertBlock, lineStarts, moveBlock, replaceContent, segment, type Segment, type SegmentKind } from './segments'
-import { Shelf, newId, shownTitle, type StoredNotebook } from './store'
+import { FormalView, ProseView, type BlockHost, type BlockView } from './blocks'
+import { el } from './dom'
+import { exportMarkdown, exportRecord, exportReport, type ExportHost } from './exports'
+import { Keeper } from './keeper'
+import { Kernel } from './kernel'
+import { Notices, type NoticeAction } from './notices'
+import { deleteBlock, insertBlock, lineAt, moveBlock, replaceContent, segment, type Segment, type SegmentKind } from './segments'
+import { Shelf, shownTitle, type StoredNotebook } from './store'
 import { ShelfPanel } from './shelf-panel'
+import { lightTick, topBar } from './header'
+import { Findings } from './findings'
+import { jumpTo, onJumpClick, placeDiagnostics } from './diagnostics'
+import { Notebooks } from './notebooks'
 import { withTitle } from './title'
 
 const ANALYZE_DELAY = 250
-const SAVE_DELAY = 500
-
-/** What one check line depends on and what it showed last. */
-interface CheckState {
-  /** The exact inputs (protocol block, property blocks, check source) as one string. */
-  inputs: string
-  /** SHA-256 of `inputs` (or the inputs themselves where Web Crypto is unavailable). */
-  key: string
-  /** Indices of the segments whose text the inputs come from. */
-  deps: Set<number>
-  /** The check line's text, to find its earlier findings after blocks move. */
-  source: string
-  rows: CheckRow[] | null
-  fresh: boolean
-}
-
-async function digest(s: string): Promise<string> {
-  const subtle = globalThis.crypto?.subtle
-  if (!subtle) return 'text:' + s // insecure context: key by the text itself
-  const bytes = new Uint8Array(await subtle.digest('SHA-256', new TextEncoder().encode(s)))
-  return [...bytes].map((b) => b.toString(16).padStart(2, '0')).join('')
-}
 
 /** The page. */
 export class Workbench {
@@ -49,75 +30,87 @@ export class Workbench {
   private model: NotebookModel | null = null
   private modelText: string | null = null
   private analyzeTimer = 0
-  private saveTimer = 0
-  private checks: CheckState[] = []
-  private memo = new Map<string, CheckRow[]>()
-  private running: { check: number; stop: boolean } | null = null
   private kernel = new Kernel()
+  private findings: Findings
+  private notebooks: Notebooks
   private shelfPanel: ShelfPanel
   private docEl = el('article', { class: 'notebook', 'aria-label': 'notebook' })
   private notesEl = el('div', { class: 'notebook-problems', role: 'alert' })
   private saveEl = el('span', { class: 'save-state', role: 'status', 'aria-live': 'polite' })
-  private noticeEl = el('div', { class: 'notices', 'aria-live': 'polite' })
+  private notices = new Notices()
+  private keeper: Keeper
   private titleEl = el('h1', { class: 'doc-title' })
   private analysisWaiters: (() => void)[] = []
 
   constructor(private root: HTMLElement, private shelf: Shelf, private guide: string) {
     this.shelfPanel = new ShelfPanel(shelf, {
-      open: (id) => this.openNotebook(id),
+      open: (id) => void this.notebooks.openNotebook(id),
       current: () => this.id,
-      rename: (id, title) => this.rename(id, title),
-      duplicated: (entry) => this.openNotebook(entry.id),
-      deleted: (entry) => this.afterDelete(entry),
-      created: () => this.newNotebook(),
-      imported: (file) => this.importFile(file),
-      restoreGuide: () => this.addGuide(),
+      rename: (id, title) => this.notebooks.rename(id, title),
+      duplicated: (entry) => void this.notebooks.openNotebook(entry.id),
+      deleted: (entry) => this.notebooks.afterDelete(entry),
+      created: () => void this.notebooks.newNotebook(),
+      imported: (file) => this.notebooks.importFile(file),
+      restoreGuide: () => void this.notebooks.addGuide(),
       notice: (m, action) => this.notice(m, action),
+      exportText: (text) => exportMarkdown(text),
+    })
+    this.notebooks = new Notebooks(shelf, guide, {
+      id: () => this.id,
+      load: (entry) => this.load(entry),
+      retitle: (title) => { this.text = withTitle(this.text, title); this.rebuild(); this.changed() },
+      flush: () => this.keeper.flush(),
+      analyze: (text) => this.kernel.analyze(text),
+      notice: (m) => this.notice(m),
+      shelfChanged: () => this.shelfPanel.refresh(),
+    })
+    this.findings = new Findings({
+      text: () => this.text,
+      views: () => this.views,
+      segmentAt: (o) => this.segmentAt(o),
+      analysis: () => this.analysis(),
+      model: () => this.model,
+      kernel: this.kernel,
+      shelf,
+      notice: (m) => this.notice(m),
+      blockHost: () => this.host,
+      reanalyze: () => this.scheduleAnalysis(0),
+    })
+    this.keeper = new Keeper(shelf, {
+      id: () => this.id,
+      text: () => this.text,
+      adopt: (text) => this.adopt(text),
+      status: (t) => { this.saveEl.textContent = t },
+      notice: (m, a) => this.notice(m, a),
+      exportNow: () => exportMarkdown(this.text),
+      shelfChanged: () => void this.shelfPanel.refresh(),
     })
     this.layout()
   }
 
   private layout(): void {
-    const runChanged = button('check what changed', () => void this.runChanged(), { class: 'primary', 'aria-label': 'run every check whose inputs changed' })
-    const exports = el('div', { class: 'exports', role: 'group', 'aria-label': 'export' },
-      el('span', { class: 'quiet' }, 'save as'),
-      button('notebook .md', () => this.exportMarkdown(), { 'aria-label': 'export the notebook as Markdown' }),
-      button('record .json', () => void this.exportRecord(), { 'aria-label': 'export the verification record as JSON' }),
-      button('report .html', () => void this.exportReport(), { 'aria-label': 'export a self-contained HTML report' }))
-    const bar = el('header', { class: 'topbar' },
-      el('div', { class: 'brand' }, 'twofold'),
-      this.titleEl,
-      el('div', { class: 'actions' }, runChanged, exports, this.saveEl))
-    const main = el('main', { class: 'page' }, this.noticeEl, this.notesEl, this.docEl)
-    this.root.replaceChildren(bar, el('div', { class: 'columns' }, this.shelfPanel.root, main))
-    this.docEl.addEventListener('click', (e) => this.onDocClick(e))
-    this.docEl.addEventListener('mouseover', (e) => this.onHover(e))
-    this.docEl.addEventListener('focusin', (e) => this.onHover(e))
+    const { bar, dialog } = topBar(this.titleEl, this.saveEl, {
+      runChanged: () => void this.findings.runChanged(),
+      runAll: () => void this.findings.runAll(),
+      exportMarkdown: () => exportMarkdown(this.text),
+      exportRecord: () => void exportRecord(this.exportHost),
+      exportReport: () => void exportReport(this.exportHost),
+    })
+    const main = el('main', { class: 'page' }, this.notices.root, this.notesEl, this.findings.summaryEl, this.docEl)
+    this.root.replaceChildren(bar, el('div', { class: 'columns' }, this.shelfPanel.root, main), dialog)
+    this.docEl.addEventListener('click', (e) => onJumpClick(e, (line, column) => this.jumpToLine(line, column)))
+    this.docEl.addEventListener('mouseover', lightTick)
+    this.docEl.addEventListener('focusin', lightTick)
   }
 
   /** Opens the notebook kept as open last time, or the guide on a first visit. */
-  async start(): Promise<void> {
-    let entry: StoredNotebook | undefined
-    try {
-      const id = await this.shelf.openId()
-      if (id) entry = await this.shelf.load(id)
-      if (!entry) {
-        const list = await this.shelf.list()
-        entry = list.length ? await this.shelf.load(list[0].id) : await this.shelf.save(newId(), this.guide)
-      }
-      await this.shelf.setOpenId(entry!.id)
-    } catch (e) {
-      this.notice(`This browser refused to store notebooks (${(e as Error).message || e}); changes will be lost when the page closes.`)
-      entry = { id: newId(), text: this.guide, changed: Date.now() }
-    }
-    this.load(entry!)
-    await this.shelfPanel.refresh()
-  }
+  start(): Promise<void> { return this.notebooks.start() }
 
-  private load(entry: StoredNotebook): void {
+  private load(stored: StoredNotebook): void {
+    const entry = this.keeper.opened(stored)
     this.id = entry.id
     this.text = entry.text
-    this.checks = []
+    this.findings.reset()
     this.model = null
     this.modelText = null
     this.rebuild()
@@ -126,17 +119,8 @@ export class Workbench {
 
   // ---- what block views ask for (BlockHost, through `host`) -------------------------------------------------------------------------
 
-  lineOf(offset: number): number {
-    const starts = lineStarts(this.text)
-    let lo = 0
-    let hi = starts.length - 1
-    while (lo < hi) {
-      const mid = (lo + hi + 1) >> 1
-      if (starts[mid] <= offset) lo = mid
-      else hi = mid - 1
-    }
-    return lo + 1
-  }
+  lineOf(offset: number): number { return lineAt(this.text, offset) }
+
 
   edited(view: BlockView, edited: string): void {
     const index = this.views.indexOf(view)
@@ -157,7 +141,7 @@ export class Workbench {
       if (linesChanged) this.views[j].moved()
     }
     if (view instanceof FormalView) view.refresh(content)
-    for (const c of this.checks) if (c.deps.has(index)) this.lineView(this.checks.indexOf(c))?.markStale()
+    this.findings.segmentEdited(index)
     this.changed()
     // A fence typed inside a formal block, or a title change, changes the structure.
     if (view instanceof FormalView && /^\s*(```|~~~)/m.test(content)) this.rebuild()
@@ -188,13 +172,9 @@ export class Workbench {
     this.structural(insertBlock(this.text, i + 1, kind), i + 1, true)
   }
 
-  runCheck(check: number): void { void this.runChecks([check]) }
+  runCheck(check: number): void { this.findings.run(check) }
 
-  stop(): void {
-    if (!this.running) return
-    this.running.stop = true
-    this.kernel.stop()
-  }
+  stop(): void { this.findings.stop() }
 
   // ---- structure -------------------------------------------------------------------------
 
@@ -216,7 +196,7 @@ export class Workbench {
   private rebuild(): void {
     for (const v of this.views) v.destroy()
     this.segs = segment(this.text)
-    const keys = [{ key: 'Alt-Shift-c', run: () => { this.runFocusedCheck(); return true } }]
+    const keys = [{ key: 'Alt-Shift-c', run: () => { this.findings.runFocused(); return true } }]
     this.views = this.segs.map((seg) =>
       seg.kind === 'prose' || seg.kind === 'front' ? new ProseView(this.host, seg, seg.kind === 'front') : new FormalView(this.host, seg, seg.kind, keys))
     this.docEl.replaceChildren(...this.views.map((v) => v.root))
@@ -249,22 +229,19 @@ export class Workbench {
 
   private changed(): void {
     this.scheduleAnalysis()
-    window.clearTimeout(this.saveTimer)
-    this.saveEl.textContent = 'editing…'
-    this.saveTimer = window.setTimeout(() => void this.save(), SAVE_DELAY)
+    this.keeper.changed()
   }
 
-  private async save(): Promise<void> {
-    const id = this.id
-    const text = this.text
-    try {
-      const entry = await this.shelf.save(id, text)
-      if (this.id === id && this.text === text) this.saveEl.textContent = `saved ${new Date(entry.changed).toLocaleTimeString()}`
-      await this.shelfPanel.refresh()
-    } catch (e) {
-      this.saveEl.textContent = 'not saved'
-      this.notice(`Could not save this notebook in the browser: ${(e as Error)?.message || e}. Export it as .md to keep your changes.`)
-    }
+  /** Takes in a text from elsewhere (another tab, a merge), keeping the cursor's block and place. */
+  private adopt(text: string): void {
+    const active = document.activeElement
+    const index = this.views.findIndex((v) => v.root.contains(active))
+    const view = this.views[index]
+    const at = view instanceof FormalView ? view.editor.view.state.selection.main.head : -1
+    this.text = text
+    this.rebuild()
+    const again = this.views[index]
+    if (at >= 0 && again instanceof FormalView) again.editor.jumpTo(at, false)
   }
 
   // ---- analysis and findings ---------------------------------------------------------------
@@ -294,7 +271,7 @@ export class Workbench {
     this.model = model
     this.modelText = text
     this.showDiagnostics(model)
-    await this.updateChecks(model, text)
+    await this.findings.update(model, text)
     const waiters = this.analysisWaiters.splice(0)
     for (const w of waiters) w()
   }
@@ -304,291 +281,34 @@ export class Workbench {
   }
 
   private showDiagnostics(model: NotebookModel): void {
-    const per = new Map<number, typeof model.diagnostics>()
-    const loose: typeof model.diagnostics = []
-    for (const d of model.diagnostics) {
-      const i = this.segmentAt(d.from)
-      if (i >= 0 && this.views[i] instanceof FormalView) {
-        const list = per.get(i) ?? []
-        list.push(d)
-        per.set(i, list)
-      } else loose.push(d)
-    }
-    this.views.forEach((v, i) => { if (v instanceof FormalView) v.diagnostics(per.get(i) ?? []) })
-    this.notesEl.replaceChildren(...loose.map((d) =>
-      el('p', { class: `diag diag-${d.severity}` }, `Line ${d.line}, column ${d.column}: ${d.message}`)))
+    this.notesEl.replaceChildren(...placeDiagnostics(model.diagnostics, this.views, (o) => this.segmentAt(o)))
   }
 
-  private lineView(check: number): CheckLineView | undefined {
-    for (const v of this.views) if (v instanceof FormalView) for (const l of v.checkLines) if (l.check === check) return l
-    return undefined
-  }
-
-  private async updateChecks(model: NotebookModel, text: string): Promise<void> {
-    const errors = model.diagnostics.some((d) => d.severity === 'error')
-    const next: CheckState[] = []
-    for (let c = 0; c < model.checks.length; c++) {
-      const check = model.checks[c]
-      const protocol = model.protocols[check.protocol]
-      const propBlocks = [...new Map(check.properties.map((p) => [p.block.from, p.block])).values()]
-      const inputs = JSON.stringify({ protocol: protocol.block.text, properties: propBlocks.map((b) => b.text), check: check.source })
-      const deps = new Set([protocol.block.from, ...propBlocks.map((b) => b.from), check.block.from].map((o) => this.segmentAt(o)))
-      const key = await digest(inputs)
-      let rows = this.memo.get(key) ?? null
-      if (!rows) {
-        try { rows = (await this.shelf.result(key)) ?? null } catch { rows = null }
-        if (rows) this.memo.set(key, rows)
-      }
-      const previous = this.checks.find((p) => p.source === check.source) ?? this.checks[c]
-      const fresh = rows !== null
-      if (!rows && previous?.rows) rows = previous.rows
-      next.push({ inputs, key, deps, source: check.source, rows, fresh })
-    }
-    if (text !== this.text) return
-    this.checks = next
-    // Lay out check lines under their blocks.
-    this.views.forEach((v, i) => {
-      if (!(v instanceof FormalView) || !v.checksBox) return
-      const mine = model.checks.map((c, k) => ({ c, k })).filter(({ c }) => this.segmentAt(c.block.from) === i)
-      const keep = v.checkLines.length === mine.length && v.checkLines.every((l, j) => l.check === mine[j].k && l.root.dataset.source === mine[j].c.source)
-      if (!keep) {
-        v.checkLines = mine.map(({ c, k }) => {
-          const line = new CheckLineView(this.host, k, c.source)
-          line.root.dataset.source = c.source
-          return line
-        })
-        v.checksBox.replaceChildren(...v.checkLines.map((l) => l.root))
-        if (!mine.length) v.checksBox.append(el('p', { class: 'quiet' }, 'No check here reads clean yet.'))
-      }
-      for (const l of v.checkLines) {
-        const s = next[l.check]
-        if (this.running?.check !== l.check) l.show(s.rows, s.fresh)
-        l.setRunnable(!errors && !this.running, errors ? 'fix the errors in the notebook first' : 'another check is running')
-      }
-    })
-  }
-
-  private runFocusedCheck(): void {
-    const active = document.activeElement?.closest('.block-check')
-    const view = this.views.find((v) => v.root === active)
-    if (view instanceof FormalView && view.checkLines.length) void this.runChecks(view.checkLines.map((l) => l.check))
-  }
-
-  /** Runs every check whose findings are missing or out of date. */
-  async runChanged(): Promise<void> {
-    await this.analysis()
-    const todo = this.checks.map((c, i) => (c.fresh ? -1 : i)).filter((i) => i >= 0)
-    if (!todo.length) { this.notice('Every check is up to date.'); return }
-    await this.runChecks(todo)
-  }
-
-  private async runChecks(list: number[]): Promise<void> {
-    if (this.running) return
-    const model = await this.analysis()
-    const problems = importProblems(model)
-    if (problems.length) { this.notice(`Fix the errors first: ${problems[0]}`); return }
-    const text = this.text
-    const states = this.checks.slice()
-    this.running = { check: -1, stop: false }
-    this.setAllRunnable(false)
-    try {
-      for (const c of list) {
-        if (this.running.stop) break
-        this.running.check = c
-        const line = this.lineView(c)
-        line?.running(true, 'planning…')
-        const rows: CheckRow[] = []
-        try {
-          const plan = await this.kernel.plan(text, c)
-          for (let r = 0; r < plan.length && !this.running.stop; r++) {
-            rows.push(await this.kernel.run(text, plan[r], (p) => this.lineView(c)?.progress(p, r, plan.length)))
-          }
-        } catch (e) {
-          this.lineView(c)?.running(false)
-          if (e instanceof StoppedError) this.lineView(c)?.note('stopped; nothing kept from the unfinished row')
-          else this.lineView(c)?.note(`the kernel failed: ${(e as Error)?.message ?? e}`)
-          if (e instanceof StoppedError) break
-          continue
-        }
-        const stopped = this.running.stop
-        this.lineView(c)?.running(false)
-        if (stopped && !rows.length) { this.lineView(c)?.note('stopped'); break }
-        const key = states[c].key
-        // A stopped check is shown but not cached: it did not finish its plan.
-        if (!stopped) {
-          this.memo.set(key, rows)
-          this.shelf.putResult(key, rows).catch((e) => this.notice(`Could not keep the findings in the browser: ${(e as Error)?.message ?? e}`))
-        }
-        const now = this.checks[c]
-        if (now && now.key === key) { now.rows = rows; now.fresh = !stopped; this.lineView(c)?.show(rows, !stopped) }
-        else if (now) { now.rows = rows; now.fresh = false; this.lineView(c)?.show(rows, false) }
-        if (stopped) this.lineView(c)?.note('stopped: the rows shown are what finished')
-      }
-    } finally {
-      this.running = null
-      this.setAllRunnable(true)
-      if (this.text !== text) this.scheduleAnalysis(0)
-    }
-  }
-
-  private setAllRunnable(on: boolean): void {
-    const errors = this.model?.diagnostics.some((d) => d.severity === 'error') ?? false
-    for (const v of this.views) if (v instanceof FormalView) for (const l of v.checkLines) l.setRunnable(on && !errors, on ? 'fix the errors in the notebook first' : 'another check is running')
-  }
 
   // ---- page events -----------------------------------------------------------------------
 
-  private onDocClick(e: MouseEvent): void {
-    const a = (e.target as HTMLElement).closest<HTMLAnchorElement>('a.jump')
-    if (!a) return
-    e.preventDefault()
-    this.jumpToLine(Number(a.dataset.line), Number(a.dataset.column))
-  }
+
 
   /** Puts the cursor at a notebook line and column, in the editor of the block that holds it. */
-  jumpToLine(line: number, column: number): void {
-    const starts = lineStarts(this.text)
-    const offset = Math.min((starts[line - 1] ?? this.text.length) + Math.max(column - 1, 0), this.text.length)
-    const i = this.segmentAt(offset)
-    const view = this.views[i]
-    if (view instanceof FormalView) view.editor.jumpTo(offset - view.seg.contentFrom)
-    else view?.root.scrollIntoView({ block: 'center' })
-  }
+  jumpToLine(line: number, column: number): void { jumpTo(this.text, this.views, (o) => this.segmentAt(o), line, column) }
 
-  private onHover(e: Event): void {
-    const target = (e.target as Element).closest?.('[data-tick]')
-    const witness = (e.target as Element).closest?.('.witness')
-    if (!witness) return
-    const tick = target?.getAttribute('data-tick') ?? null
-    for (const n of witness.querySelectorAll('.lit')) n.classList.remove('lit')
-    if (tick !== null) for (const n of witness.querySelectorAll(`[data-tick="${CSS.escape(tick)}"]`)) n.classList.add('lit')
-  }
 
-  private notice(message: string, action?: { label: string; run: () => void }): void {
-    const close = button('dismiss', () => item.remove(), { class: 'dismiss', 'aria-label': 'dismiss this message' })
-    const item = el('div', { class: 'notice', role: 'status' }, el('span', {}, message))
-    if (action) item.append(button(action.label, () => { item.remove(); action.run() }, { class: 'undo' }))
-    item.append(close)
-    this.noticeEl.append(item)
-    window.setTimeout(() => item.remove(), action ? 15_000 : 12_000)
-  }
 
-  // ---- notebooks -------------------------------------------------------------------------
 
-  private async flushSave(): Promise<void> {
-    if (this.saveTimer) { window.clearTimeout(this.saveTimer); this.saveTimer = 0; await this.save() }
-  }
-
-  async openNotebook(id: string): Promise<void> {
-    await this.flushSave()
-    try {
-      const entry = await this.shelf.load(id)
-      if (!entry) { this.notice('That notebook is no longer kept in this browser.'); return }
-      await this.shelf.setOpenId(id)
-      this.load(entry)
-      await this.shelfPanel.refresh()
-    } catch (e) {
-      this.notice(`Could not open the notebook: ${(e as Error)?.message ?? e}`)
-    }
-  }
-
-  private async rename(id: string, title: string): Promise<void> {
-    if (id === this.id) {
-      this.text = withTitle(this.text, title)
-      this.rebuild()
-      this.changed()
-      await this.flushSave()
-      return
-    }
-    const entry = await this.shelf.load(id)
-    if (entry) await this.shelf.save(id, withTitle(entry.text, title))
-    await this.shelfPanel.refresh()
-  }
-
-  private async afterDelete(entry: StoredNotebook): Promise<void> {
-    if (entry.id === this.id) {
-      const list = await this.shelf.list()
-      if (list.length) await this.openNotebook(list[0].id)
-      else await this.newNotebook(this.guide)
-    }
-  }
-
-  private async newNotebook(text = '---\ntitle: Untitled notebook\n---\n\n# Untitled notebook\n\n'): Promise<void> {
-    await this.flushSave()
-    try {
-      const entry = await this.shelf.save(newId(), text)
-      await this.openNotebook(entry.id)
-    } catch (e) {
-      this.notice(`Could not create a notebook in this browser: ${(e as Error)?.message ?? e}`)
-    }
-  }
-
-  private async addGuide(): Promise<void> { await this.newNotebook(this.guide) }
-
-  /** Imports a `.md` file: adds it only when it is text and reads without errors. */
-  async importFile(file: File): Promise<boolean> {
-    try {
-      const text = decodeText(new Uint8Array(await file.arrayBuffer()))
-      const problems = importProblems(await this.kernel.analyze(text))
-      if (problems.length) throw new ImportRefused(problems)
-      await this.newNotebook(text)
-      this.notice(`Imported ${file.name}.`)
-      return true
-    } catch (e) {
-      const reasons = e instanceof ImportRefused ? e.reasons : [String((e as Error)?.message ?? e)]
-      const shown = reasons.slice(0, 3).join('; ') + (reasons.length > 3 ? `; and ${reasons.length - 3} more` : '')
-      this.notice(`Nothing was imported from ${file.name}: ${shown}.`)
-      return false
-    }
-  }
+  private notice(message: string, action?: NoticeAction): void { this.notices.show(message, action) }
 
   // ---- exports ---------------------------------------------------------------------------
 
-  private exportMarkdown(): void {
-    download(fileName(shownTitle(this.text), '.md'), 'text/markdown;charset=utf-8', this.text)
-  }
-
-  /** The Report of the findings shown now (fresh rows only), in plan order. */
-  private async report(model: NotebookModel): Promise<Report> {
-    const plan = await this.kernel.plan(this.text)
-    const checks: CheckRow[] = []
-    this.checks.forEach((s, c) => {
-      if (!s.fresh || !s.rows) return
-      const mine = plan.filter((p) => p.check === c)
-      s.rows.forEach((r, k) => checks.push({ ...r, check: c, row: mine[k]?.row ?? r.row }))
-    })
+  private get exportHost(): ExportHost {
     return {
-      notebook: { path: fileName(shownTitle(this.text), '.md'), sha256: await digest(this.text) },
-      errors: model.diagnostics.filter((d) => d.severity === 'error').map((d) => ({ line: d.line, column: d.column, message: d.message })),
-      checks,
+      text: () => this.text,
+      segments: () => this.segs,
+      segmentAt: (o) => this.segmentAt(o),
+      checks: () => this.findings.checks,
+      kernel: this.kernel,
+      analysis: () => this.analysis(),
+      runChanged: () => this.findings.runChanged(true),
+      notice: (m) => this.notice(m),
     }
-  }
-
-  private async exportRecord(): Promise<void> {
-    await this.runChanged()
-    const model = await this.analysis()
-    if (this.checks.some((c) => !c.fresh)) { this.notice('Some checks did not finish, so no record was made.'); return }
-    const report = await this.report(model)
-    const { buildRecord } = await import('../../kernels/record/record')
-    const { canonicalJsonPretty } = await import('../../kernels/record/canonical')
-    const record = await buildRecord(report, this.text, model)
-    download(fileName(shownTitle(this.text), '.record.json'), 'application/json', canonicalJsonPretty(record) + '\n')
-  }
-
-  private async exportReport(): Promise<void> {
-    const model = await this.analysis()
-    const byBlock = new Map<number, ReportCheck[]>()
-    model.checks.forEach((c, k) => {
-      const i = this.segmentAt(c.block.from)
-      const list = byBlock.get(i) ?? []
-      const s = this.checks[k]
-      list.push({ source: c.source, rows: s?.rows ?? null, fresh: s?.fresh ?? false })
-      byBlock.set(i, list)
-    })
-    const html = buildReport({
-      title: shownTitle(this.text), text: this.text, segments: this.segs, checks: byBlock,
-      prose: (src) => renderProse(src, true), sha256: await digest(this.text), created: new Date(),
-    })
-    download(fileName(shownTitle(this.text), '.report.html'), 'text/html;charset=utf-8', html)
   }
 }

@@ -15,6 +15,7 @@ describe('exports', () => {
   it('exports a verification record with every row the kernel plans for the notebook', async () => {
     const { context, page } = await open()
     const download = page.waitForEvent('download', { timeout: 90_000 })
+    await page.locator('details.exports summary').click()
     await page.getByRole('button', { name: 'export the verification record as JSON' }).click()
     const record = JSON.parse(readFileSync((await (await download).path())!, 'utf8'))
     // Oracle: the kernel run directly in Node on the same guide text.
@@ -31,6 +32,7 @@ describe('exports', () => {
     await page.locator('.check-line').first().locator('button.run').click()
     await page.waitForSelector('.check-line.fresh', { timeout: 60_000 })
     const download = page.waitForEvent('download')
+    await page.locator('details.exports summary').click()
     await page.getByRole('button', { name: 'export a self-contained HTML report' }).click()
     const html = readFileSync((await (await download).path())!, 'utf8')
     expect(html).not.toMatch(/<script/i)

@@ -217,8 +217,9 @@ describe('reasons', () => {
     const link = page.locator(`a.jump[data-line="${reason.line}"]`).first()
     expect(await link.textContent()).toBe(`line ${reason.line}, column ${reason.column}`)
     await link.click()
-    const at = await page.evaluate(() => document.activeElement?.closest('.block-protocol')?.querySelector('.cm-focused .cm-activeLine')?.textContent ?? null)
-    expect(at).toBe(quay.split('\n')[reason.line - 1])
+    // The editor draws the line once it has scrolled there (a frame later): wait for it.
+    const want = quay.split('\n')[reason.line - 1]
+    await page.waitForFunction((w) => document.activeElement?.closest('.block-protocol')?.querySelector('.cm-focused .cm-activeLine')?.textContent === w, want, { timeout: 5000 })
     await context.close()
   })
 })

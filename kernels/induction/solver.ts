@@ -1,0 +1,44 @@
+// The SMT solver behind proofs by induction: Z3 through its official WebAssembly build on npm
+// (`z3-solver`). It is loaded by a dynamic import the first time a check asks for induction, so a
+// page or a command that never proves anything never downloads or starts it. In Node it runs
+// in-process; in the browser it runs in the kernel worker and needs SharedArrayBuffer (the pages
+// are served cross-origin isolated). One context is shared by every proof of a process.
+import type { Context } from 'z3-solver'
+
+/** The Z3 context every encoding of this process is built in. */
+export type Z3 = Context<'twofold'>
+
+/** A loaded solver: its context, and its name and version for records. */
+export interface SolverHandle {
+  z: Z3
+  /** For records: `z3-solver <npm version> (Z3 <full version>)`. */
+  version: string
+  /** Ends the solver's worker threads (Node), so that a command line can exit. */
+  close(): Promise<void>
+}
+
+/** The npm version of the package we load; package.json of z3-solver says the same. */
+export const Z3_PACKAGE_VERSION = '5.2.0'
+
+let loading: Promise<SolverHandle> | null = null
+
+/** Loads Z3 once (later calls share the same context). */
+export function loadSolver(): Promise<SolverHandle> {
+  if (!loading) {
+    loading = (async () => {
+      const mod = await import('z3-solver')
+      const api = await mod.init()
+      const z = new api.Context('twofold') as Z3
+      return {
+        z,
+        version: `z3-solver ${Z3_PACKAGE_VERSION} (Z3 ${api.getFullVersion()})`,
+        async close() {
+          loading = null
+          await mod.killThreads(api.em)
+        },
+      }
+    })()
+    loading.catch(() => { loading = null })
+  }
+  return loading
+}

@@ -28,4 +28,4 @@ export interface RunOptions {
 }
 
 export { analyzeNotebook } from './language/analyze'
-export { planRows, runRow, runNotebook } from './run'
+export { planRows, runRow, runPlannedRow, runNotebook } from './run'

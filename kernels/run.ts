@@ -16,6 +16,7 @@ import { channelEmpty, compileTerm, isCrashed, isStable, type StateTerm } from '
 import { canonicalizer, freePermutations, permuteState } from './symmetry/canon'
 import { decideCutoff } from './symmetry/cutoff'
 import { sha256Hex } from './record/hash'
+import { byInduction, runInductionRow, type ProofCache } from './induction/row'
 import type { CheckRow, CutoffInfo, Report } from './result'
 
 /** States explored before a check without `limit` gives up as inconclusive (memory guard). */
@@ -500,7 +501,18 @@ export async function runNotebook(text: string, path: string, opts: RunOptions =
   const sha256 = await sha256Hex(text)
   const errors = model.diagnostics.filter((d) => d.severity === 'error').map((d) => ({ line: d.line, column: d.column, message: d.message }))
   if (errors.length > 0) return { notebook: { path, sha256 }, errors, checks: [] }
-  const rows = planRows(model, opts).map((plan) => runRow(model, plan, opts))
+  const cache: ProofCache = new Map()
+  const rows: CheckRow[] = []
+  for (const plan of planRows(model, opts)) rows.push(await runPlannedRow(model, plan, opts, cache))
   return { notebook: { path, sha256 }, errors, checks: markAgreement(rows) }
+}
+
+/**
+ * Runs one planned row by its check's method: `by induction` rows go to the induction engine
+ * (asynchronous: the solver is loaded on first use), the others to `runRow`. Rows of one check,
+ * size and setting share one joint proof through `cache`.
+ */
+export async function runPlannedRow(model: NotebookModel, plan: RowPlan, opts: RunOptions = {}, cache: ProofCache = new Map()): Promise<CheckRow> {
+  return byInduction(model.checks[plan.check]) ? runInductionRow(model, plan, opts, cache) : runRow(model, plan, opts)
 }
 

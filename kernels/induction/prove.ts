@@ -44,10 +44,12 @@ export interface InductionProof {
 /** Runs one solver question, interruptible; 'unknown' carries the solver's reason. */
 async function ask(z: Z3, solver: Solver<'twofold'>, opts: InductionOptions): Promise<'sat' | 'unsat' | 'unknown'> {
   if (opts.timeoutMs) solver.set('timeout', opts.timeoutMs)
+  if (opts.shouldStop?.()) return 'unknown'
   let stopped = false
   const timer = opts.shouldStop ? setInterval(() => { if (!stopped && opts.shouldStop!()) { stopped = true; z.interrupt() } }, 100) : null
   try {
-    return await solver.check()
+    const answer = await solver.check()
+    return stopped ? 'unknown' : answer
   } finally {
     if (timer) clearInterval(timer)
   }

@@ -1,0 +1,84 @@
+// Verdicts of proofs by induction (induction.md). Oracles: the explorer (a reachable
+// counterexample, an unreachable one, agreement where it finishes) and the explicit successor
+// function, which prove.ts itself uses to confirm every counterexample to induction.
+import { afterAll, describe, expect, test } from 'vitest'
+import { loadSolver } from '../../kernels/induction/solver'
+import { runNotebook } from '../../kernels/run'
+import { CALM, FRESH, inductionRows, lanternsNotebook } from './fixtures'
+
+afterAll(async () => { await (await loadSolver()).close() })
+
+describe('proof by induction', () => {
+  test('a true invariant that is not inductive: inconclusive with a counterexample to induction, s unreachable', async () => {
+    const [row] = await inductionRows(lanternsNotebook([CALM], ['check lanterns: calm for 2 processes']))
+    expect(row.method).toBe('induction')
+    expect(row.verdict).toBe('inconclusive')
+    expect(row.solver).toMatch(/^z3-solver 5\.2\.0/)
+    const cx = row.counterexample!
+    expect(cx.kind).toBe('induction')
+    expect(cx.ticks).toHaveLength(1)
+    expect(cx.induction!.property).toBe('calm')
+    expect(cx.induction!.after).not.toBeNull()
+    // In s' the watcher has marked a live lantern dark.
+    const { p, q } = cx.induction!.assignment
+    const after = cx.induction!.after!
+    expect(after.processes[q - 1].alive).toBe(true)
+    expect(after.processes[p - 1].values[`dark[${q}]`]).toBe(true)
+    expect(row.note).toMatch(/not among them.*add a property that excludes this state/)
+    // Oracle: the explorer agrees that calm holds at this size.
+    const explored = await runNotebook(lanternsNotebook([CALM], ['check lanterns: calm for 2 processes']), 'x.md')
+    expect(explored.checks[0].verdict).toBe('holds')
+  }, 60_000)
+
+  test('the strengthening makes it inductive, at sizes exploration checks too', async () => {
+    const text = lanternsNotebook([CALM, FRESH], ['check lanterns: calm, fresh for 2..3 processes'])
+    const rows = await inductionRows(text)
+    expect(rows.map((r) => [r.property, r.processes, r.verdict])).toEqual([
+      ['calm', 2, 'holds'], ['calm', 3, 'holds'], ['fresh', 2, 'holds'], ['fresh', 3, 'holds'],
+    ])
+    // Oracle: the explorer's verdicts at the same sizes.
+    const explored = await runNotebook(text, 'x.md')
+    expect(explored.checks.map((r) => r.verdict)).toEqual(['holds', 'holds', 'holds', 'holds'])
+  }, 60_000)
+
+  test('an initial state that breaks the property: violated with a trace of zero ticks', async () => {
+    const [row] = await inductionRows(lanternsNotebook(['property lit = forall p, q: always p.quiet[q] = 1'], ['check lanterns: lit for 2 processes']))
+    expect(row.verdict).toBe('violated')
+    expect(row.counterexample!.kind).toBe('trace')
+    expect(row.counterexample!.ticks).toEqual([])
+  }, 60_000)
+
+  test('a reachable counterexample to induction: violated with the real shortest trace', async () => {
+    const text = lanternsNotebook(['property never = forall p, q: always not p.dark[q]'], ['check lanterns: never for 2 processes'])
+    const [row] = await inductionRows(text)
+    expect(row.verdict).toBe('violated')
+    expect(row.counterexample!.kind).toBe('trace')
+    // Oracle: the explorer's own shortest trace has the same length.
+    const explored = await runNotebook(text, 'x.md')
+    expect(explored.checks[0].verdict).toBe('violated')
+    expect(row.counterexample!.ticks.length).toBe(explored.checks[0].counterexample!.ticks.length)
+  }, 60_000)
+
+  test('a property that is not `always S` is a located error', async () => {
+    const [row] = await inductionRows(lanternsNotebook(['property later = forall p, q: eventually p.dark[q]'], ['check lanterns: later for 2 processes']))
+    expect(row.verdict).toBe('error')
+    expect(row.note).toMatch(/^line \d+, column \d+: `later` cannot be proved by induction/)
+  }, 60_000)
+
+  test('an encoding beyond the budget is inconclusive with the reason, never holds', async () => {
+    const { proveInduction } = await import('../../kernels/induction/prove')
+    const { inductionModel } = await import('./fixtures')
+    const model = inductionModel(lanternsNotebook([CALM, FRESH], ['check lanterns: calm, fresh for 3 processes']))
+    const proof = await proveInduction(model.protocols[0], model.checks[0].properties, 3, [2], { budget: 4 })
+    expect(proof.outcome.kind).toBe('unknown')
+    expect((proof.outcome as { reason: string }).reason).toMatch(/budget of 4/)
+  }, 60_000)
+
+  test('stopping interrupts the solver: inconclusive, never holds', async () => {
+    const { proveInduction } = await import('../../kernels/induction/prove')
+    const { inductionModel } = await import('./fixtures')
+    const model = inductionModel(lanternsNotebook([CALM, FRESH], ['check lanterns: calm, fresh for 3 processes']))
+    const proof = await proveInduction(model.protocols[0], model.checks[0].properties, 3, [2], { shouldStop: () => true })
+    expect(proof.outcome.kind).toBe('unknown')
+  }, 60_000)
+})

@@ -82,3 +82,16 @@ describe('proof by induction', () => {
     expect(proof.outcome.kind).toBe('unknown')
   }, 60_000)
 })
+
+describe('the command line shows a counterexample to induction tick-style', () => {
+  test('s, the tick, s\' and the failing conjunct', async () => {
+    const { renderReport } = await import('../../src/cli/table')
+    const rows = await inductionRows(lanternsNotebook([CALM], ['check lanterns: calm for 2 processes']))
+    const text = renderReport({ notebook: { path: 'l.md', sha256: '' }, errors: [], checks: rows })
+    expect(text).toMatch(/counterexample \(induction, 1 tick; p=#\d, q=#\d\)/)
+    expect(text).toMatch(/\n {4}s {6}#1 /)
+    expect(text).toMatch(/\n {4}t1 {2}/)
+    expect(text).toMatch(/\n {4}s' {5}#1 /)
+    expect(text).toMatch(/fails in s': calm at p = \d, q = \d/)
+  }, 60_000)
+})

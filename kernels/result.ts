@@ -89,8 +89,10 @@ export interface CheckRow {
   counterexample: Counterexample | null
   /** The processes the property's variables were bound to, e.g. {p: 1, q: 2}. */
   assignment: Record<string, number>
-  /** How the property was checked: 'invariant' (reachability) or 'ltl' (automaton product). */
-  method?: 'invariant' | 'ltl' | 'induction'
+  /** How the row was decided (records.md): by exploring the instance, or by induction (induction.md). */
+  method?: 'exploration' | 'induction'
+  /** exploration only: 'invariant' (reachability) or 'ltl' (automaton product). */
+  search?: 'invariant' | 'ltl'
   /** induction only: the solver's name and version. */
   solver?: string
   /** Symmetry-reduced state count, when the check used reduction. */

@@ -376,7 +376,8 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
     const fixed = chosen[0]
     const rr = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: progress, invariant, canonicalize: canonicalizer(inst, fixed) })
     if (rr.outcome === 'ok') {
-      row.method = 'invariant'
+      row.method = 'exploration'
+      row.search = 'invariant'
       row.assignment = named(prop, fixed)
       row.reducedStates = rr.states
       row.states = orbitTotal(inst, rr, fixed)
@@ -395,7 +396,8 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   const r = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: progress, invariant })
   row.states = r.states
   row.transitions = r.transitions
-  row.method = inv ? 'invariant' : 'ltl'
+  row.method = 'exploration'
+  row.search = inv ? 'invariant' : 'ltl'
   row.assignment = named(prop, chosen[0] ?? [])
   const data = r.store.data
   if (r.outcome === 'model-error' && r.error && r.trace) {

@@ -170,7 +170,8 @@ function verdictOf(row: CheckRow, proof: InductionProof, check: CheckModel, mine
     ? `the explorer visited every reachable state (${r.states}) and the state s is not among them: the invariant is true but not inductive; add a property that excludes this state`
     : r.stopped ? 'the check was stopped before the explorer could tell whether s is reachable'
       : `the explorer could not tell within ${limit} states whether s is reachable`
-  row.note = `not inductive: ${cx.message}; ${reach}`
+  row.complete = r.complete
+  row.note = `not inductive at N = ${inst.n}: ${reach}`
 }
 
 function allAssignments(n: number, k: number): number[][] {

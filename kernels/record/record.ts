@@ -22,6 +22,8 @@ export interface Shard { index: number; count: number }
 export interface RecordOptions {
   only: string | null
   shard: Shard | null
+  /** The solver's name and version, when some row was proved by induction (induction.md). */
+  solver?: string
   limits: (number | null)[]
 }
 
@@ -81,12 +83,18 @@ export async function buildRecord(
       only: options.only ?? null,
       shard: options.shard ? { index: options.shard.index, count: options.shard.count } : null,
       limits: model.checks.map((check) => check.limit),
+      ...solverOf(checks),
     },
     blocks: await hashBlocks(model),
     errors,
     checks,
     created: (options.created ?? new Date()).toISOString(),
   }
+}
+
+function solverOf(checks: CheckRow[]): { solver?: string } {
+  const row = checks.find((r) => r.method === 'induction' && r.solver)
+  return row ? { solver: row.solver } : {}
 }
 
 /** The SHA-256 of each formal block's text, in notebook order, with its kind, name and line. */

@@ -51,7 +51,7 @@ function cell(r: CheckRow): Markup {
     ? html`<div class="alarm">sizes disagree: soundness alarm</div>`
     : r.agreement === true ? html`<div class="counts">agrees with the cutoff instance</div>` : null
   const partial = r.complete ? null : html` <span class="quiet">(stopped early)</span>`
-  return html`<td class="verdict v-${r.verdict}" data-row="${r.row}"><span class="word">${VERDICT_WORDS[r.verdict]}</span>${alarm}<div class="counts">${count(r.states)} states · ${count(r.transitions)} transitions${partial}</div><div class="counts">${r.method ? `${r.method === 'ltl' ? 'temporal' : 'invariant'}, ` : ''}${r.seconds.toFixed(2)} s${r.reducedStates !== undefined ? ` · ${count(r.reducedStates)} up to symmetry` : ''}</div>${r.note ? html`<div class="note">${r.note}</div>` : null}</td>`
+  return html`<td class="verdict v-${r.verdict}" data-row="${r.row}"><span class="word">${VERDICT_WORDS[r.verdict]}</span>${alarm}<div class="counts">${count(r.states)} states · ${count(r.transitions)} transitions${partial}</div><div class="counts">${r.method ? `${r.method === 'induction' ? 'induction' : r.search === 'ltl' ? 'temporal' : 'invariant'}, ` : ''}${r.seconds.toFixed(2)} s${r.reducedStates !== undefined ? ` · ${count(r.reducedStates)} up to symmetry` : ''}</div>${r.note ? html`<div class="note">${r.note}</div>` : null}</td>`
 }
 
 /** A cutoff certificate: the theorem instance typeset, and the rules passed or the reasons. */

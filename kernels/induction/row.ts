@@ -174,6 +174,13 @@ function verdictOf(row: CheckRow, proof: InductionProof, check: CheckModel, mine
   row.note = `not inductive at N = ${inst.n}: ${reach}`
 }
 
+/** The state formula S of `always S`, as written. */
+function sourceOf(prop: PropertyModel): string {
+  const f = prop.formula
+  const span = f.k === 'always' ? f.arg.span : f.span
+  return prop.block.text.slice(span.from - prop.block.from, span.to - prop.block.from).replace(/\s+/g, ' ')
+}
+
 function allAssignments(n: number, k: number): number[][] {
   if (k === 0) return [[]]
   const out: number[][] = []
@@ -193,6 +200,8 @@ function inductionCounterexample(inst: Instance, out: Extract<InductionProof['ou
     message,
     initial: inst.describeInitial(out.before, 0),
     ticks: out.after ? [inst.describeTick(out.before, 0, out.after, 0, 1)] : [],
+    // The failing conjunct as an atom band: true in s, false in s' (the diagram highlights it).
+    ...(c && out.after ? { atoms: [{ text: `${conjunct}: ${sourceOf(props[c.property])}`, values: [true, false] }] } : {}),
     induction: {
       before: inductionState(inst, out.before),
       after: out.after ? inductionState(inst, out.after) : null,

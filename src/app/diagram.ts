@@ -79,7 +79,9 @@ export function counterexampleSvg(cx: Counterexample, processes: number, opts: D
     parts.push(html`<rect class="tick-band" data-tick="${i}" x="0" y="${tickY(i) - ROW / 2}" width="${width}" height="${ROW}"><title>tick ${cx.ticks[i].tick}</title></rect>`)
   }
   for (let k = 0; k < states; k++) {
-    parts.push(html`<text class="state-label" x="${LEFT - 10}" y="${stateY(k) + 4}" text-anchor="end">${k === 0 ? 'start' : `after ${cx.ticks[k - 1].tick}`}</text>`)
+    // A counterexample to induction starts from a state s that need not be reachable.
+    const label = cx.kind === 'induction' ? (k === 0 ? 's' : "s'") : k === 0 ? 'start' : `after ${cx.ticks[k - 1].tick}`
+    parts.push(html`<text class="state-label" x="${LEFT - 10}" y="${stateY(k) + 4}" text-anchor="end">${label}</text>`)
   }
   if (cx.loopStart !== undefined && cx.loopStart >= 0 && cx.loopStart <= ticks) {
     const y1 = stateY(cx.loopStart)
@@ -161,6 +163,13 @@ export function changesTable(cx: Counterexample): string {
     const vals = Object.entries(p.values).map(([k, v]) => `${k} = ${shown(v)}`).join(', ')
     return html`<div><span class="who">process ${p.process}</span> ${vals}</div>`
   })
+  const before = cx.induction?.before
+  if (before) {
+    const dead = before.processes.filter((p) => !p.alive).map((p) => p.process)
+    if (dead.length) initial.push(html`<div>crashed: ${dead.join(', ')}</div>`)
+    const flight = before.inFlight.map((m) => `${m.message} ${m.from} to ${m.to}${m.age !== undefined ? ` (age ${m.age})` : ''}`)
+    initial.push(html`<div>in flight: ${flight.length ? flight.join(', ') : 'nothing'}</div>`)
+  }
   const rows = cx.ticks.map((t, i) => {
     const lines: Markup[] = []
     if (t.stabilized) lines.push(html`<div class="ev-stable">timing becomes bounded</div>`)
@@ -172,5 +181,5 @@ export function changesTable(cx: Counterexample): string {
     const loop = cx.loopStart === i ? html`<div class="ev-loop">the loop starts here</div>` : null
     return html`<tr data-tick="${i}"><th scope="row">${t.tick}</th><td>${loop}${lines.length ? lines : html`<span class="quiet">nothing happens</span>`}</td></tr>`
   })
-  return html`<table class="ticks"><caption>What happens, tick by tick</caption><thead><tr><th scope="col">tick</th><th scope="col">events and changes</th></tr></thead><tbody><tr class="initial"><th scope="row">start</th><td>${initial}</td></tr>${rows}</tbody></table>`.text
+  return html`<table class="ticks"><caption>What happens, tick by tick</caption><thead><tr><th scope="col">tick</th><th scope="col">events and changes</th></tr></thead><tbody><tr class="initial"><th scope="row">${cx.kind === 'induction' ? 's' : 'start'}</th><td>${initial}</td></tr>${rows}</tbody></table>`.text
 }

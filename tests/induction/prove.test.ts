@@ -95,3 +95,17 @@ describe('the command line shows a counterexample to induction tick-style', () =
     expect(text).toMatch(/fails in s': calm at p = \d, q = \d/)
   }, 60_000)
 })
+
+describe('the workbench draws a counterexample to induction as a one-tick diagram', () => {
+  test('s and s\' with the failing conjunct highlighted', async () => {
+    const { counterexampleSvg, changesTable } = await import('../../src/app/diagram')
+    const [row] = await inductionRows(lanternsNotebook([CALM], ['check lanterns: calm for 2 processes']))
+    const cx = row.counterexample!
+    expect(cx.atoms).toEqual([{ text: expect.stringMatching(/^calm at p = \d, q = \d: alive\(q\) implies not p\.dark\[q\]$/), values: [true, false] }])
+    const svg = counterexampleSvg(cx, row.processes)
+    expect(svg).toContain('>s</text>')
+    expect(svg).toContain('>s&#39;</text>')
+    expect(svg).toContain('class="atom-band"')
+    expect(changesTable(cx)).toContain('in flight: glow')
+  }, 60_000)
+})

@@ -22,12 +22,38 @@ export const Z3_PACKAGE_VERSION = '5.2.0'
 
 let loading: Promise<SolverHandle> | null = null
 
+function inBrowser(): boolean {
+  return typeof window !== 'undefined' || typeof (globalThis as { WorkerGlobalScope?: unknown }).WorkerGlobalScope !== 'undefined'
+}
+
+/**
+ * In the browser the package expects its Emscripten script as a global `initZ3`, which a module
+ * worker cannot `importScripts`: the script is fetched and evaluated in the worker's global scope,
+ * its pthread workers start from the same script's URL, and the wasm is located by its asset URL
+ * (the bundler emits both as assets, fetched only here).
+ */
+async function browserOverrides(): Promise<Record<string, unknown>> {
+  const g = globalThis as { initZ3?: unknown; global?: unknown }
+  g.global ??= globalThis
+  const [{ default: script }, { default: wasm }] = await Promise.all([
+    import('z3-solver/build/z3-built.js?url'),
+    import('z3-solver/build/z3-built.wasm?url'),
+  ])
+  if (!g.initZ3) {
+    const text = await (await fetch(script)).text()
+    // An indirect eval runs in the global scope, where the script's `var initZ3` becomes global.
+    ;(0, eval)(text)
+  }
+  return { locateFile: (file: string) => (file.endsWith('.wasm') ? wasm : file), mainScriptUrlOrBlob: script }
+}
+
 /** Loads Z3 once (later calls share the same context). */
 export function loadSolver(): Promise<SolverHandle> {
   if (!loading) {
     loading = (async () => {
+      const overrides = inBrowser() ? await browserOverrides() : {}
       const mod = await import('z3-solver')
-      const api = await mod.init()
+      const api = await mod.init(overrides)
       const z = new api.Context('twofold') as Z3
       return {
         z,

@@ -68,3 +68,10 @@ export function loadSolver(): Promise<SolverHandle> {
   }
   return loading
 }
+
+/** Ends the solver's threads if it was ever loaded (a command line calls this before exiting); loads nothing. */
+export async function closeSolver(): Promise<void> {
+  if (!loading) return
+  const handle = await loading.catch(() => null)
+  await handle?.close()
+}

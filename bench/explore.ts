@@ -80,7 +80,7 @@ export function exploreCases(): BenchCase[] {
     measure('pumps heartbeat, synchronous, crash', pumps('synchronous(delay: delay, idle: 1)'), 2),
     measure('pumps heartbeat, synchronous, crash', pumps('synchronous(delay: delay, idle: 1)'), 3),
     measure('pumps heartbeat, synchronous idle 2, crash', pumps('synchronous(delay: delay, idle: 2)'), 2),
-    measure('pumps heartbeat, stabilizing, crash', pumps('stabilizing(delay: delay, idle: 1)'), 2),
+    measure('pumps heartbeat, eventually synchronous, crash', pumps('eventually synchronous(delay: delay, idle: 1)'), 2),
     measure('pumps heartbeat, asynchronous, crash', pumps('asynchronous'), 2),
     measure('ferries berth gossip, asynchronous, crash', ferries, 2),
   ]

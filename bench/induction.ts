@@ -41,7 +41,7 @@ property fresh = forall p, q: always (alive(p) and alive(q) implies p.quiet[q] <
 \`\`\`
 
 \`\`\`check
-check lanterns: calm, fresh for 2 processes
+check lanterns: calm, fresh at N = 2
 \`\`\`
 `
 

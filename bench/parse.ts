@@ -56,7 +56,7 @@ export function generatedNotebook(targetLines = 5000): string {
       '```', '',
       '```check',
       `check station${k}: detects${k}, settles${k}`,
-      `check station${k}: bounded${k} for 2..3 processes with delay in 1..2 limit 100000 states`,
+      `check station${k}: bounded${k} at N = 2..3 with delay in 1..2 within 100000 states`,
       '```', '',
     )
   }

@@ -15,7 +15,7 @@ export interface MessageEvent { from: number; to: number; message: string }
 export interface TickRecord {
   tick: number
   crashed: number[]
-  /** stabilizing only: true in the tick that set `stable`. */
+  /** eventually synchronous only: true in the tick that set `stable` (GST: the bounds hold from then on). */
   stabilized?: boolean
   stepped: number[]
   received: MessageEvent[]
@@ -51,8 +51,8 @@ export interface Counterexample {
   induction?: { before: InductionState; after: InductionState | null; property: string | null; conjunct: string | null; assignment: Record<string, number> }
 }
 
-/** One failed class-check rule (cutoff.md). */
-export interface Reason { rule: number; line: number; column: number; message: string }
+/** One failed class-check rule (cutoff.md): its number and its short name, such as `no-aggregate`. */
+export interface Reason { rule: number; name: string; line: number; column: number; message: string }
 
 export interface CutoffInfo {
   applies: boolean
@@ -79,7 +79,7 @@ export interface CheckRow {
   property: string
   processes: number
   constants: Record<string, number>
-  timing: 'synchronous' | 'stabilizing' | 'asynchronous'
+  timing: 'synchronous' | 'eventually synchronous' | 'asynchronous'
   verdict: Verdict
   states: number
   transitions: number

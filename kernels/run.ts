@@ -4,22 +4,25 @@
 // with the automaton of their negation under the fairness of semantics.md.
 import type { RowPlan, RunOptions } from './api'
 import { analyzeNotebook } from './language/analyze'
+import { instantiatedText } from './language/instantiate'
 import type { CheckModel, Formula, NotebookModel, PropertyModel, ProtocolModel, Term } from './language/model'
 import { explore, type ExploreResult } from './explore/reach'
 import { modelErrorCounterexample, traceCounterexample } from './explore/trace'
 import { fromModel } from './logic/ltl'
 import { Int32Buffer } from './logic/buffer'
 import { checkLtl, type System } from './logic/product'
-import { ModelSetupError } from './model/errors'
+import { MAX_TEMPORAL_PROCESSES } from './language/limits'
+import { ModelSetupError, PropertyFault } from './model/errors'
 import { compileInstance, type Instance } from './model/instance'
 import { channelEmpty, compileTerm, isCrashed, isStable, type StateTerm } from './model/observe'
 import { canonicalizer, freePermutations, permuteState } from './symmetry/canon'
 import { decideCutoff } from './symmetry/cutoff'
+import { RULE_NAMES } from './symmetry/rules'
 import { sha256Hex } from './record/hash'
 import { byInduction, runInductionRow, type ProofCache } from './induction/row'
 import type { CheckRow, CutoffInfo, Report } from './result'
 
-/** States explored before a check without `limit` gives up as inconclusive (memory guard). */
+/** States explored before a check without `within K states` gives up as inconclusive (memory guard). */
 export const DEFAULT_LIMIT = 4_000_000
 
 /** Every constant setting of a check: the cartesian product of its sweep, in sweep order. */
@@ -60,6 +63,16 @@ export function planRows(model: NotebookModel, opts: RunOptions = {}): RowPlan[]
   if (!opts.shard) return plan
   const { index, count } = opts.shard
   return plan.filter((r) => r.row % count === index - 1)
+}
+
+/** Does the term divide (`/` or `%`) anywhere? */
+function divides(t: Term): boolean {
+  switch (t.k) {
+    case 'bin': return t.op === '/' || t.op === '%' || divides(t.left) || divides(t.right)
+    case 'min': case 'max': return divides(t.left) || divides(t.right)
+    case 'neg': return divides(t.arg)
+    default: return false
+  }
 }
 
 /** Does the formula contain a temporal operator? */
@@ -118,7 +131,7 @@ function atomBands(inst: Instance, data: Uint32Array, path: number[], prop: Prop
   const W = inst.words
   return terms.map((t) => {
     const f = compileTerm(inst, t, a)
-    return { text: sourceOf(prop, t.span), values: path.map((s) => f(data, s * W) !== 0) }
+    return { text: instantiatedText(prop, t, t.span, a), values: path.map((s) => f(data, s * W) !== 0) }
   })
 }
 
@@ -147,7 +160,7 @@ export interface FairGraph {
 /**
  * Fairness sets (semantics.md) as transition marks: bit i, process i steps or is crashed; then one
  * bit per channel j->i: i is crashed, or the channel is empty at the source, or i receives from it
- * in the tick; last, under stabilizing, the edge ends in a stable state.
+ * in the tick; last, under eventually synchronous, the edge ends in a stable state.
  */
 export interface FairMarks {
   fairnessSets: number
@@ -167,7 +180,7 @@ export function fairMarks(inst: Instance): FairMarks {
       if (i !== j) channels.push({ i, bit: n + channels.length, index: j * (n - 1) + (i < j ? i : i - 1), test: channelEmpty(inst, j, i) })
     }
   }
-  const stab = inst.protocol.timing.kind === 'stabilizing' ? isStable(inst) : null
+  const stab = inst.protocol.timing.kind === 'eventually synchronous' ? isStable(inst) : null
   const fairnessSets = n + channels.length + (stab ? 1 : 0)
   return {
     fairnessSets,
@@ -322,7 +335,7 @@ export function runRow(model: NotebookModel, plan: RowPlan, opts: RunOptions = {
   try {
     cutoff = decideCutoff(protocol, prop)
   } catch (e) {
-    cutoff = { ...emptyCutoff(), reasons: [{ rule: 0, line: prop.span.line, column: prop.span.column, message: `the class check failed internally (${(e as Error).message})` }] }
+    cutoff = { ...emptyCutoff(), reasons: [{ rule: 0, name: RULE_NAMES[0], line: prop.span.line, column: prop.span.column, message: `the class check failed internally (${(e as Error).message})` }] }
   }
   const row: CheckRow = {
     row: plan.row, check: plan.check, protocol: protocol.name, property: prop.name,
@@ -332,7 +345,13 @@ export function runRow(model: NotebookModel, plan: RowPlan, opts: RunOptions = {
   }
   const finish = (): CheckRow => { row.seconds = (performance.now() - t0) / 1000; return row }
   if (plan.processes === null && !cutoff.applies) {
-    row.note = 'the cutoff does not apply to this protocol and property (see the reasons); give explicit sizes with `for N processes`'
+    row.note = 'the cutoff does not apply to this protocol and property (see the reasons); give explicit sizes with `at N = K`'
+    return finish()
+  }
+  if (check.method === 'induction') {
+    // Proofs are asynchronous (the solver loads on first use): runPlannedRow routes them.
+    row.verdict = 'error'
+    row.note = 'a check by induction is run by runPlannedRow, not runRow'
     return finish()
   }
   const n = row.processes
@@ -361,9 +380,16 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
         opts.onProgress!({ check: row.check, property: prop.name, processes: n, ...p })
     : undefined
   const inv = invariantBody(prop.formula)
+  if (!inv && n > MAX_TEMPORAL_PROCESSES) {
+    throw new ModelSetupError(`temporal properties are checked on at most ${MAX_TEMPORAL_PROCESSES} processes (their fairness conditions fill a 32-bit mark), not ${n} (line ${prop.span.line}, column ${prop.span.column})`, prop.span)
+  }
   const predicates = inv ? chosen.map((a) => statePredicate(inv, (t) => compileTerm(inst, t, a))) : []
+  // A division in the property is evaluated in every atom on every state, whatever the connectives
+  // around it, so that a division by zero is a model error (as in protocols) however it is guarded.
+  const dividing = inv && terms.some(divides) ? chosen.map((a) => terms.map((t) => compileTerm(inst, t, a))) : null
   let failed = -1
   const invariant = inv ? (w: Uint32Array, o: number) => {
+    if (dividing) for (const atoms of dividing) for (const t of atoms) t(w, o)
     for (let k = 0; k < predicates.length; k++) if (!predicates[k](w, o)) { failed = k; return false }
     return true
   } : undefined
@@ -371,7 +397,8 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   // property names stay fixed and the others are interchangeable (the class check granted it, and
   // a protocol cannot tell processes apart). Temporal properties are checked unreduced, because
   // the fairness sets name processes and a quotient would mix them.
-  const reduce = inv !== null && cutoff.applies && cutoff.processes !== null && n - cutoff.processes >= 2
+  // Permutations are enumerated per state, so only up to 5 free processes (120 permutations).
+  const reduce = inv !== null && cutoff.applies && cutoff.processes !== null && n - cutoff.processes >= 2 && n - chosen[0].length <= 5
   if (reduce) {
     const fixed = chosen[0]
     const rr = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: progress, invariant, canonicalize: canonicalizer(inst, fixed) })
@@ -383,7 +410,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
       row.states = orbitTotal(inst, rr, fixed)
       row.transitions = rr.transitions
       if (!rr.complete) {
-        row.note = rr.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`limit K states\``
+        row.note = rr.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`within K states\``
         return row
       }
       row.verdict = 'holds'
@@ -421,7 +448,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
     return row
   }
   if (!r.complete) {
-    row.note = r.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`limit K states\``
+    row.note = r.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`within K states\``
     return row
   }
   if (inv) {
@@ -438,7 +465,20 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   }
   for (const a of chosen) {
     const compiled = terms.map((t) => compileTerm(inst, t, a))
-    const sys = systemOf(inst, r, graph, compiled)
+    let sys: System
+    try {
+      sys = systemOf(inst, r, graph, compiled)
+    } catch (e) {
+      if (!(e instanceof PropertyFault)) throw e
+      // An atom divides by zero on a reachable state: find the shortest trace to such a state.
+      const again = explore(inst, { limit, shouldStop: opts.shouldStop, invariant: (w, o) => { for (const t of compiled) t(w, o); return true } })
+      if (!again.error || !again.trace) throw e
+      row.verdict = 'violated'
+      row.complete = false
+      row.assignment = named(prop, a)
+      row.counterexample = modelErrorCounterexample(inst, again.store, again.trace, again.error)
+      return row
+    }
     const ltl = fromModel(prop.formula, (t) => terms.indexOf(t))
     let stoppedByLimit = false
     const v = checkLtl(sys, ltl, {

@@ -6,7 +6,8 @@
 // once, at a violation, and saves a parent link per state (memory is the packed states plus the
 // hash table, nothing else per state).
 import { canonicalState } from '../model/decode'
-import type { ModelError } from '../model/errors'
+import { PropertyFault, type ModelError } from '../model/errors'
+import type { ExpansionBound } from '../model/expansion'
 import type { Instance } from '../model/instance'
 import { StateStore } from './stateset'
 
@@ -21,7 +22,10 @@ export interface ExploreProgress {
 export interface ExploreOptions {
   /** Stop (incomplete, `limitHit`) rather than store more than this many states. */
   limit?: number
-  /** Checked on every state found, initial ones included; false stops with the shortest trace. */
+  /**
+   * Checked on every state found, initial ones included; false stops with the shortest trace. A
+   * PropertyFault thrown by it (division by zero in a property) is a model error on that state.
+   */
   invariant?: (w: Uint32Array, off: number) => boolean
   /** Polled regularly; true stops the exploration (`stopped`, incomplete). */
   shouldStop?: () => boolean
@@ -129,6 +133,18 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
     for (let off = 0; off < init.length; off += W) { canon(init, off, rep); reps.set(rep, off) }
     init = reps
   }
+  /** The invariant on the state just stored as idx; false when it fails or faults (then halted). */
+  const check = (w: Uint32Array, off: number, idx: number): boolean => {
+    try {
+      if (invariant!(w, off)) return true
+      violation = idx
+    } catch (e) {
+      if (!(e instanceof PropertyFault)) throw e
+      if (!error) { error = e.toModelError(); errorSource = idx }
+    }
+    halted = true
+    return false
+  }
   for (let off = 0; off < init.length && !halted; off += W) {
     if (store.lookup(init, off) >= 0) continue
     if (store.size >= limit) {
@@ -136,10 +152,7 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
       break
     }
     const idx = store.insert(init, off)
-    if (invariant && !invariant(init, off)) {
-      violation = idx
-      halted = true
-    }
+    if (invariant) check(init, off, idx)
   }
 
   const seen = new TargetSet()
@@ -154,17 +167,15 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
       }
       idx = store.insert(dst, 0)
       if (seen.add(idx)) transitions++
-      if (invariant && !invariant(dst, 0)) {
-        violation = idx
-        halted = true
-        return true
-      }
+      if (invariant && !check(dst, 0, idx)) return true
       return false
     }
     if (seen.add(idx)) transitions++
     return false
   }
 
+  // One bound object for the whole search (no allocation per state); see expansion.ts.
+  const bound: ExpansionBound = { room: limit, stop: opts.shouldStop, stopAtError: !opts.continueOnError, interrupted: false }
   const src = new Uint32Array(W)
   let head = 0
   let levelEnd = store.size
@@ -178,7 +189,12 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
     }
     store.get(head, src, 0)
     seen.reset()
-    const err = inst.successors(src, 0, emit)
+    bound.room = limit - store.size
+    const err = inst.successors(src, 0, emit, bound)
+    if (bound.interrupted) {
+      stopped = halted = true
+      break
+    }
     if (err && !halted && !error) {
       error = err
       errorSource = head
@@ -232,6 +248,9 @@ function traceTo(inst: Instance, store: StateStore, levelStart: number[], target
   while (level + 1 < levelStart.length && levelStart[level + 1] <= target) level++
   const path = [target]
   const src = new Uint32Array(W)
+  // Outcome lists are cut (at a size ordinary states never reach) and doubled until the successor
+  // wanted comes out, so a state with billions of successors is not expanded in full to find one.
+  const bound: ExpansionBound = { room: 4096, interrupted: false }
   let cur = target
   for (let L = level; L > 0; L--) {
     const from = levelStart[L - 1]
@@ -245,7 +264,7 @@ function traceTo(inst: Instance, store: StateStore, levelStart: number[], target
           return true
         }
         return false
-      })
+      }, bound)
     }
     if (parent < 0) throw new Error('trace reconstruction lost its way: a state without a parent in the previous level')
     path.push(parent)

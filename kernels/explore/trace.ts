@@ -29,11 +29,12 @@ export function traceCounterexample(inst: Instance, store: StateStore, trace: nu
 /**
  * A `model-error` counterexample: the trace to the state whose step failed, then that failing
  * tick, which lists the erring process as stepping with what it had received (nothing changed:
- * the branch has no successor state).
+ * the branch has no successor state). An error of a property's term (process 0) ends at the
+ * state on which the term failed, with no further tick.
  */
 export function modelErrorCounterexample(inst: Instance, store: StateStore, trace: number[], error: ModelError): Counterexample {
   const ticks = describeTrace(inst, store, trace)
-  ticks.push({ tick: ticks.length + 1, crashed: [], stepped: [error.process], received: error.received, sent: [], changes: [] })
+  if (error.process > 0) ticks.push({ tick: ticks.length + 1, crashed: [], stepped: [error.process], received: error.received, sent: [], changes: [] })
   return {
     kind: 'model-error',
     message: error.message,

@@ -24,7 +24,7 @@ export type ProofCache = Map<string, Promise<InductionProof>>
 
 /** Whether a check asks for induction. */
 export function byInduction(check: CheckModel): boolean {
-  return (check as CheckModel & { method?: string }).method === 'induction'
+  return check.method === 'induction'
 }
 
 /** The state of a counterexample to induction as people read it. */
@@ -85,7 +85,7 @@ export async function runInductionRow(model: NotebookModel, plan: RowPlan, opts:
     }
   }
   if (plan.processes === null && !cutoff.applies) {
-    row.note = 'the cutoff does not apply to this protocol and property (see the reasons); give explicit sizes with `for N processes`'
+    row.note = 'the cutoff does not apply to this protocol and property (see the reasons); give explicit sizes with `at N = K`'
     return finish()
   }
   const n = row.processes
@@ -121,7 +121,7 @@ function verdictOf(row: CheckRow, proof: InductionProof, check: CheckModel, mine
     const all = cutoffs.every((c) => c.applies)
     row.note = `proved by induction at N = ${inst.n}: every initial state satisfies the invariant and every tick from a state of the type space that satisfies it keeps it`
     if (!all && row.cutoff.applies) {
-      row.cutoff = { ...row.cutoff, applies: false, statement: '', tex: '', reasons: [{ rule: 0, line: check.span.line, column: check.span.column, message: 'the proof is of the conjunction of the listed properties, and not every one of them is granted the cutoff, so it is not carried to other sizes' }] }
+      row.cutoff = { ...row.cutoff, applies: false, statement: '', tex: '', reasons: [{ rule: 0, name: 'joint-proof', line: check.span.line, column: check.span.column, message: 'the proof is of the conjunction of the listed properties, and not every one of them is granted the cutoff, so it is not carried to other sizes' }] }
     }
     return
   }

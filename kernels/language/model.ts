@@ -89,8 +89,10 @@ export interface Handler {
   body: Stmt[]
   span: Span
 }
+/** The timing kinds, as written after `timing` (semantics.md). */
+export type TimingKind = 'synchronous' | 'eventually synchronous' | 'asynchronous'
 export type Timing =
-  | { kind: 'synchronous' | 'stabilizing'; delay: Expr; idle: Expr; span: Span }
+  | { kind: 'synchronous' | 'eventually synchronous'; delay: Expr; idle: Expr; span: Span }
   | { kind: 'asynchronous'; span: Span }
 
 /** A binder: a peer variable introduced by `from q`, `for q` or an aggregate. */
@@ -158,10 +160,13 @@ export interface CheckModel {
   protocol: number // NotebookModel.protocols index
   /** Properties resolved against that protocol, in the order listed. */
   properties: PropertyModel[]
-  /** Explicit sizes (`for 2 processes`, `for 2..4 processes`), or null for the cutoff default. */
+  /** Explicit sizes (`at N = 2`, `at N = 2..4`), or null for the cutoff default. */
   sizes: number[] | null
   sweep: SweepItem[]
+  /** The bound of `within K states`, or null when the check gives none. */
   limit: number | null
+  /** `by induction` proves the properties together by induction (induction.md); otherwise they are explored. */
+  method: 'exploration' | 'induction'
   span: Span
   block: BlockRef
   /** The check's source text, one line. */

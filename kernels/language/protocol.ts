@@ -8,6 +8,7 @@ import type {
   Binder, BinOp, ConstDecl, Expr, FieldDecl, Handler, MessageDecl, ProtocolModel, Span, Stmt, Target,
   Timing, Type, VarDecl,
 } from './model'
+import { protocolProblems } from './bounds'
 import { BOOL, ConstantError, evalConstant, INT, sameSort, Sort, sortName, sortOf } from './sorts'
 import { didYouMean } from './suggest'
 
@@ -117,7 +118,7 @@ class ProtocolResolver {
     if (!this.timing) {
       this.timing = { kind: 'asynchronous', span: ctx.span(nameNode) }
       if (!this.broken) {
-        ctx.error(nameNode, `protocol \`${ctx.text(nameNode)}\` has no timing declaration; add \`timing synchronous(delay: 1, idle: 1)\`, \`timing stabilizing(delay: D, idle: I)\` or \`timing asynchronous\``)
+        ctx.error(nameNode, `protocol \`${ctx.text(nameNode)}\` has no timing declaration; add \`timing synchronous(delay: 1, idle: 1)\`, \`timing eventually synchronous(delay: D, idle: I)\` or \`timing asynchronous\``)
       }
       this.broken = true
     }
@@ -141,6 +142,13 @@ class ProtocolResolver {
       step: this.step,
       binders: this.binders,
       block: ctx.block,
+    }
+    if (!this.broken) {
+      // Ranges, constants and arithmetic beyond the limits (limits.ts), under the declared constants.
+      for (const p of protocolProblems(model, this.constValues)) {
+        ctx.error(p.span, p.message)
+        this.broken = true
+      }
     }
     return { model, broken: this.broken }
   }
@@ -294,16 +302,23 @@ class ProtocolResolver {
       ctx.error(d, `a protocol has exactly one timing declaration, and this is the second (the first is at line ${this.timing.span.line}); remove one`)
       return
     }
-    const kind = ctx.text(d.getChild('TimingKind')!) as Timing['kind']
+    const kindNode = d.getChild('TimingKind')!
+    const written = ctx.text(kindNode).replace(/\s+/g, ' ')
     const params = d.getChild('ParamList')
+    // The earlier spelling is read as the current one (so nothing else cascades), with an error.
+    if (written === 'stabilizing') {
+      const given = params ? ctx.text(params).replace(/\s+/g, ' ') : ''
+      ctx.error(kindNode, `write \`timing eventually synchronous${given || '(delay: D, idle: I)'}\` instead of \`timing stabilizing${given}\``)
+    }
+    const kind: Timing['kind'] = written === 'stabilizing' ? 'eventually synchronous' : written as Timing['kind']
     if (kind === 'asynchronous') {
-      if (params) ctx.error(params, '`timing asynchronous` takes no parameters; remove the parentheses, or use `stabilizing` for bounds that hold eventually')
+      if (params) ctx.error(params, '`timing asynchronous` takes no parameters; remove the parentheses, or use `eventually synchronous` for bounds that hold from an unknown time on')
       this.timing = { kind, span }
       return
     }
     const got: Record<string, Expr> = {}
     // After a faulty parameter, a "missing parameter" error would only repeat it.
-    let faulty = false
+    let faulty = written === 'stabilizing' && !params
     for (const p of params?.getChildren('Param') ?? []) {
       const pid = p.getChild('Identifier')!
       const pname = ctx.text(pid)

@@ -50,12 +50,15 @@ const THING: Record<string, string> = {
   Forall: '`forall`',
   PropertyDecl: 'property declaration',
   CheckDecl: 'check',
-  ForClause: '`for` clause of the check',
-  SizeRange: '`for` clause of the check',
+  SizeClause: '`at` clause of the check',
+  SizeRange: '`at` clause of the check',
   WithClause: '`with` clause of the check',
   SweepItem: '`with` clause of the check',
   SweepRange: '`with` clause of the check',
-  LimitClause: '`limit` clause of the check',
+  BoundClause: '`within` clause of the check',
+  MethodClause: '`by` clause of the check',
+  ForClause: 'earlier `for` clause of the check',
+  LimitClause: 'earlier `limit` clause of the check',
 }
 
 /** What may come next, by the construct the error sits in. */
@@ -64,7 +67,7 @@ const EXPECT: Record<string, string> = {
   ProtocolDecl: 'write `protocol NAME { ... }`',
   ProtocolBody: 'a protocol body holds `const`, `timing`, `faults`, `message`, `state`, `on` and `step` declarations',
   ConstDecl: 'write `const NAME = INTEGER`',
-  TimingDecl: 'write `timing synchronous(delay: D, idle: I)`, `timing stabilizing(delay: D, idle: I)` or `timing asynchronous`',
+  TimingDecl: 'write `timing synchronous(delay: D, idle: I)`, `timing eventually synchronous(delay: D, idle: I)` or `timing asynchronous`',
   ParamList: 'write `(delay: D, idle: I)`',
   Param: 'write `delay: D` or `idle: I`',
   FaultsDecl: 'write `faults none` or `faults crash`',
@@ -102,25 +105,40 @@ const EXPECT: Record<string, string> = {
   Aggregate: 'write `count q: E`, `some q: E` or `every q: E`',
   Forall: 'write `forall p: ...` or `forall p, q: ...`',
   PropertyDecl: 'write `property NAME = FORMULA`',
-  CheckDecl: 'write `check PROTOCOL: PROPERTY, ... [for N processes] [with C = V, ...] [limit K states]`',
-  ForClause: 'write `for N processes` or `for A..B processes`',
-  SizeRange: 'write `for A..B processes`',
+  CheckDecl: 'write `check PROTOCOL: PROPERTY, ... [at N = K] [with C = V, ...] [within K states] [by induction]`',
+  SizeClause: 'write `at N = K` or `at N = A..B`',
+  SizeRange: 'write `at N = A..B`',
   WithClause: 'write `with C = V` or `with C in A..B`, separated by commas',
   SweepItem: 'write `C = V` or `C in A..B`',
   SweepRange: 'write `C in A..B`',
-  LimitClause: 'write `limit K states`',
+  BoundClause: 'write `within K states`',
+  MethodClause: 'write `by induction`',
+  ForClause: 'write the sizes as `at N = K` or `at N = A..B`',
+  LimitClause: 'write the bound as `within K states`',
 }
 
+// The words of the protocol and property languages (`kw<...>` in the grammar). A test compares
+// this list with the grammar and with the guide's section on reserved words.
 const RESERVED = new Set([
-  'protocol', 'const', 'timing', 'synchronous', 'stabilizing', 'asynchronous', 'faults', 'none', 'crash',
+  'protocol', 'const', 'timing', 'faults', 'none', 'crash',
   'message', 'state', 'peer', 'any', 'bool', 'on', 'from', 'step', 'one', 'of', 'if', 'else', 'for',
   'broadcast', 'send', 'to', 'skip', 'true', 'false', 'pending', 'not', 'always', 'eventually', 'next',
   'until', 'unless', 'and', 'or', 'implies', 'iff', 'then', 'count', 'some', 'every', 'forall',
-  'property', 'check', 'processes', 'process', 'with', 'in', 'limit', 'states',
+  'property', 'check',
 ])
 
 /** The reserved words of the language (they cannot name anything). */
 export const reservedWords: ReadonlySet<string> = RESERVED
+
+/**
+ * The contextual keywords (`ckw<...>` in the grammar): keywords only where a check line or a
+ * timing line expects them, ordinary names everywhere else. `stabilizing`, `limit`, `processes`
+ * and `process` are read only to point at the current spelling.
+ */
+export const contextualWords: ReadonlySet<string> = new Set([
+  'synchronous', 'asynchronous', 'stabilizing',
+  'at', 'with', 'in', 'within', 'states', 'by', 'induction', 'processes', 'process', 'limit',
+])
 
 /** Parses a block's text. */
 export function parseBlock(text: string): Tree {
@@ -158,7 +176,8 @@ export function reportSyntaxErrors(tree: Tree, ctx: BlockContext): number {
       if (node.from === node.to) {
         const next = firstToken(text.slice(node.from))
         const at = next ? `before \`${next}\`` : 'at the end of the block'
-        const start = text.slice(node.from).search(/\S|$/) + node.from
+        // At the end of the block, the place is right after the last word (not the closing fence).
+        const start = next ? text.slice(node.from).search(/\S|$/) + node.from : text.slice(0, node.from).trimEnd().length
         ctx.error({ from: start, to: start + Math.max(next.length, 0) }, `the ${thing} is incomplete ${at}; ${expect}`)
       } else {
         const token = firstToken(text.slice(node.from, node.to)) || text.slice(node.from, node.to).trim()

@@ -26,7 +26,7 @@ export interface ModelError {
   span: Span
   line: number
   column: number
-  /** The process whose step raised it, 1-based. */
+  /** The process whose step raised it, 1-based; 0 when a property's term raised it on a state. */
   process: number
   /** `x` or `x[j]` (j 1-based) for an assignment, `kind.field` for a send, null for arithmetic. */
   variable: string | null
@@ -35,4 +35,21 @@ export interface ModelError {
   type: string | null
   /** The messages the failing step had received, in handling order. */
   received: MessageEvent[]
+}
+
+/**
+ * A division or remainder by zero while evaluating a property term on a state: a model error at
+ * the operator, as in protocols (semantics.md), never a silent value. Thrown by compiled terms.
+ */
+export class PropertyFault {
+  constructor(readonly span: Span, readonly what: 'division' | 'modulo') {}
+
+  /** The model error it stands for. */
+  toModelError(): ModelError {
+    const s = this.span
+    return {
+      message: `model error at line ${s.line}, column ${s.column}: ${this.what} by zero in a property, on the state reached`,
+      span: s, line: s.line, column: s.column, process: 0, variable: null, value: null, type: null, received: [],
+    }
+  }
 }

@@ -5,9 +5,13 @@ import type { Change, InitialProcess, MessageEvent, ShownValue, TickRecord } fro
 import { evalConst } from './constants'
 import { ModelSetupError, type ModelError } from './errors'
 import { Program } from './exec'
+import type { ExpansionBound } from './expansion'
 import { channelIndex, makeLayout, readField, writeField, type Field, type Layout } from './layout'
 import { showMessage, showValue } from './show'
 import { TickEngine } from './tick'
+
+/** The most initial states an exploration starts from (they are listed before the search). */
+export const MAX_INITIAL_STATES = 1 << 22
 
 /** A compiled instance. Not thread-safe: one call at a time (it owns its scratch space). */
 export interface Instance {
@@ -27,10 +31,13 @@ export interface Instance {
    * same target may come from several combinations; count transitions on targets. `dst` is
    * scratch (copy it to keep it). `stepped` is a bitmask of the processes (bit p, 0-based) that
    * stepped; `receivedFrom` a bitmask over channels (bit `channelIndex(n, j, i)`) that delivered
-   * at least one message in this tick. If emit returns true, enumeration stops. Returns the first
-   * model error met (that branch has no successor), or null.
+   * at least one message in this tick (meaningful up to 6 processes, where n(n-1) channels fit in
+   * 32 bits; temporal checks, the only readers, stop at 5). If emit returns true, enumeration
+   * stops. Returns the first model error met (that branch has no successor), or null. A `bound`
+   * carries the room left under the state limit and a stop request into the expansion
+   * (expansion.ts).
    */
-  successors(src: Uint32Array, off: number, emit: (dst: Uint32Array, stepped: number, receivedFrom: number) => unknown): ModelError | null
+  successors(src: Uint32Array, off: number, emit: (dst: Uint32Array, stepped: number, receivedFrom: number) => unknown, bound?: ExpansionBound): ModelError | null
   /**
    * The tick from one state to a given successor, described as records.md says (`tick` is its
    * number). Where several ticks lead there, `want` picks the one in which exactly these processes
@@ -83,7 +90,11 @@ export function compileInstance(protocol: ProtocolModel, n: number, constants: n
       for (let p = 0; p < n; p++) for (const s of varFields(p)) slots.push({ field: s.field, values: initValues[s.v], lo: layout.vars[s.v].lo })
       let total = 1
       for (const s of slots) total *= s.values.length
-      if (total * words > 1 << 28) throw new ModelSetupError(`the instance has ${total} initial states, too many to list`, protocol.span)
+      if (total > MAX_INITIAL_STATES) {
+        // Each `any` multiplies the initial states per process and per peer entry.
+        const first = protocol.vars.find((d) => d.init === 'any')!
+        throw new ModelSetupError(`the \`any\` initial values give ${Number.isSafeInteger(total) ? total : `about ${total.toPrecision(3)}`} initial states for ${n} processes, more than the ${MAX_INITIAL_STATES} an exploration may start from (\`${first.name}\`, line ${first.span.line}, column ${first.span.column}); give fixed initial values or narrower types`, first.span)
+      }
       const out = new Uint32Array(total * words)
       const one = new Uint32Array(words)
       for (let p = 0; p < n; p++) writeField(one, 0, layout.alive[p], 1)
@@ -101,8 +112,8 @@ export function compileInstance(protocol: ProtocolModel, n: number, constants: n
       return out
     },
 
-    successors(src, off, emit) {
-      return engine.successors(src, off, emit)
+    successors(src, off, emit, bound) {
+      return engine.successors(src, off, emit, bound)
     },
 
     describeTick(src, srcOff, dst, dstOff, tick = 0, want): TickRecord {
@@ -132,7 +143,7 @@ export function compileInstance(protocol: ProtocolModel, n: number, constants: n
         }
       }
       const rec: TickRecord = { tick, crashed, stepped, received, sent, changes }
-      if (layout.timing === 'stabilizing') rec.stabilized = choice.stabilized
+      if (layout.timing === 'eventually synchronous') rec.stabilized = choice.stabilized
       return rec
     },
 

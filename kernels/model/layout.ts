@@ -5,10 +5,12 @@
 // under a timing bound), its scalars and its per-peer entries; per channel j->i and per message
 // value one field of `delay` bits, bit a-1 set when a copy of age a is in flight (one bit, present,
 // under asynchronous: copies are a set, so a mask is exact); and the `stable` flag under
-// stabilizing. Values are stored minus their type's lower bound.
+// eventually synchronous. Values are stored minus their type's lower bound.
 import type { ProtocolModel, Type } from '../language/model'
 import { evalConst, typeBounds, typeText } from './constants'
 import { ModelSetupError } from './errors'
+import { protocolProblems } from '../language/bounds'
+import { MAX_PROCESSES } from '../language/limits'
 
 /** One packed field: `bits` bits at `shift` in word `word` of a state. A 0-bit field always reads 0. */
 export interface Field {
@@ -46,7 +48,7 @@ export interface MessageInfo {
 }
 
 /** Which timing model an instance runs, with its bounds evaluated (0 under asynchronous). */
-export type TimingKind = 'synchronous' | 'stabilizing' | 'asynchronous'
+export type TimingKind = 'synchronous' | 'eventually synchronous' | 'asynchronous'
 
 /** The packed shape of every state of one instance. Plain data. */
 export interface Layout {
@@ -87,15 +89,21 @@ export interface Layout {
 
 /**
  * The index of channel j->i (0-based processes, j != i): j*(n-1) + (i < j ? i : i-1). Channels of
- * one sender are contiguous, and n(n-1) channels fit in a 32-bit mask for n <= 6.
+ * one sender are contiguous; n(n-1) channels fit in a 32-bit mask for n <= 6 (what temporal checks
+ * use: MAX_TEMPORAL_PROCESSES).
  */
 export function channelIndex(n: number, j: number, i: number): number {
   return j * (n - 1) + (i < j ? i : i - 1)
 }
 
-/** Bits needed for `size` distinct values (0 for a single value). */
+/**
+ * Bits needed for `size` distinct values (0 for a single value). Counted without 32-bit
+ * arithmetic, so a size of 2^32 or more gives 33 or more bits, never a wrapped small number.
+ */
 export function bitsFor(size: number): number {
-  return size <= 1 ? 0 : 32 - Math.clz32(size - 1)
+  let bits = 0
+  while (2 ** bits < size) bits++
+  return bits
 }
 
 /** Reads a field of the state at `off`. */
@@ -116,8 +124,7 @@ export function fieldMask(f: Field): number {
   return f.bits === 0 ? 0 : ((0xffffffff >>> (32 - f.bits)) << f.shift) >>> 0
 }
 
-/** The largest instance we compile: stepped and received masks are 32-bit. */
-export const MAX_PROCESSES = 6
+export { MAX_PROCESSES }
 
 /**
  * Lays out the states of G_n of `protocol` under `constants` (one value per `protocol.consts`, in
@@ -130,6 +137,9 @@ export function makeLayout(protocol: ProtocolModel, n: number, constants: number
   if (constants.length !== protocol.consts.length) {
     throw new ModelSetupError(`expected ${protocol.consts.length} constant values, got ${constants.length}`, protocol.span)
   }
+  // The checker refused these already for the declared constants; a check's sweep may set others.
+  const problem = protocolProblems(protocol, constants)[0]
+  if (problem) throw new ModelSetupError(`${problem.message} (line ${problem.span.line}, column ${problem.span.column})`, problem.span)
   const t = protocol.timing
   let delay = 0
   let idleBound = 0
@@ -240,7 +250,7 @@ export function makeLayout(protocol: ProtocolModel, n: number, constants: number
       channel.push(row)
     }
   }
-  const stable = t.kind === 'stabilizing' ? place('stable', 1) : null
+  const stable = t.kind === 'eventually synchronous' ? place('stable', 1) : null
   const words = used === 0 && word === 0 ? 1 : word + 1
 
   const procMask: Uint32Array[] = []

@@ -1,6 +1,6 @@
 // Property atoms on packed states: what the runner and the temporal product read from a state.
 import type { ProcRef, Term } from '../language/model'
-import { ModelSetupError } from './errors'
+import { ModelSetupError, PropertyFault } from './errors'
 import type { Instance } from './instance'
 import { channelIndex, fieldMask, readField } from './layout'
 
@@ -20,7 +20,9 @@ function procOf(inst: Instance, r: ProcRef, assignment: number[]): number {
  * Compiles a property term for one assignment of the property's variables (`assignment[k]` is the
  * 0-based process bound to quantified variable k; `#n` is process n-1). `pending(M, q -> p)` is 1
  * when some value of kind M is in flight on channel q->p. Throws ModelSetupError when a reference
- * names no process, or `p.x[q]` has p = q. Division by zero while evaluating throws an Error.
+ * names no process, or `p.x[q]` has p = q. Division or remainder by zero while evaluating throws
+ * a PropertyFault (a model error at the operator). The checker proved every intermediate value a
+ * safe integer (language/bounds.ts), so the arithmetic is exact.
  */
 export function compileTerm(inst: Instance, term: Term, assignment: number[]): StateTerm {
   const { layout } = inst
@@ -98,7 +100,7 @@ export function compileTerm(inst: Instance, term: Term, assignment: number[]): S
           return (w, o) => {
             const x = a(w, o)
             const y = b(w, o)
-            if (y === 0) throw new Error(`division by zero in a property at line ${span.line}, column ${span.column}`)
+            if (y === 0) throw new PropertyFault(span, div ? 'division' : 'modulo')
             return div ? Math.trunc(x / y) : x % y
           }
         }

@@ -16,6 +16,7 @@ import { StateStore } from '../explore/stateset'
 import type { MessageEvent } from '../result'
 import type { ModelError } from './errors'
 import { ExecFault, type Program } from './exec'
+import type { ExpansionBound } from './expansion'
 import { fieldMask, readField, type Field, type Layout } from './layout'
 import { showMessage } from './show'
 
@@ -78,6 +79,12 @@ export class TickEngine {
   private readonly combo: Int32Array
   private readonly live: Int32Array
   private recordNotes: OutcomeNote[] | null = null
+  /** The bound of the current expansion, if any; see `successors`. */
+  private bound: ExpansionBound | null = null
+  /** Set when an outcome list of this expansion was cut short (not memoized, pool to be reset). */
+  private cut = false
+  /** Whether the last `generate` cut its list (a field, not a returned object: no allocation per state). */
+  private lastCut = false
   private readonly choice = { crashed: 0, stabilized: false, bound: 0, combo: new Int32Array(0) as Int32Array }
   private emit: ((dst: Uint32Array, stepped: number, receivedFrom: number) => unknown) | null = null
   /** Made once: passing a fresh closure per state would allocate in the hot loop. */
@@ -145,8 +152,14 @@ export class TickEngine {
    * Calls `emit` once per combination of (crash subset, `stable` choice, one distinct outcome per
    * taking-part process) of the state at src[off..). `emit` may return true to stop early.
    * Returns the first model error met (its branch produced no successor), or null.
+   *
+   * With a `bound`, a wide expansion is done lazily: each process's outcome list is first cut at
+   * `room + 1` distinct outcomes, which usually gives more new states than fit; only when the
+   * combinations of the cut lists do not fill the room (outcomes that lead to the same states)
+   * are the lists completed. `bound.stop` is polled throughout; when it says stop, nothing more is
+   * emitted and `bound.interrupted` is set.
    */
-  successors(src: Uint32Array, off: number, emit: (dst: Uint32Array, stepped: number, receivedFrom: number) => unknown): ModelError | null {
+  successors(src: Uint32Array, off: number, emit: (dst: Uint32Array, stepped: number, receivedFrom: number) => unknown, bound?: ExpansionBound): ModelError | null {
     const { layout, W, cur } = this
     for (let w = 0; w < W; w++) cur[w] = src[off + w]
     if (this.poolLen * this.stride > MEMO_POOL_LIMIT) this.resetMemo()
@@ -154,18 +167,41 @@ export class TickEngine {
     let aliveMask = 0
     for (let p = 0; p < n; p++) if (readField(cur, 0, layout.alive[p]) === 1) aliveMask |= 1 << p
     const bounds = this.boundsFor(cur)
+    this.bound = bound ?? null
+    this.emit = emit
+    let error: ModelError | null = null
+    // Cut lists that do not fill the room (outcomes leading to known states) are cut again at
+    // twice the size, so the work stays within twice what the room needs. Targets emitted before
+    // come again; callers count transitions on distinct targets.
+    for (let cap = bound ? Math.max(1, bound.room + 1) : Infinity; ; cap *= 2) {
+      this.cut = false
+      const e = this.allOutcomes(aliveMask, bounds, cap)
+      if (!error) error = e
+      if (bound?.interrupted) break
+      const ended = this.forEachCombination(aliveMask, bounds, this.pool, this.forward)
+      if (ended || !this.cut || bound?.interrupted || (error && bound?.stopAtError)) break
+      this.resetMemo()
+    }
+    this.emit = null
+    this.bound = null
+    // Cut or abandoned lists sit in the pool without a memo entry: start the pool afresh.
+    if (this.cut || bound?.interrupted) this.resetMemo()
+    return error
+  }
+
+  /** Fills starts/counts for every alive process and allowed bound setting; the first error. */
+  private allOutcomes(aliveMask: number, bounds: number, cap: number): ModelError | null {
+    const n = this.layout.n
     let error: ModelError | null = null
     for (let b = 0; b < 2; b++) {
       if ((bounds & (1 << b)) === 0) continue
       for (let p = 0; p < n; p++) {
         if ((aliveMask & (1 << p)) === 0) continue
-        const e = this.outcomesOf(p, b)
+        const e = this.outcomesOf(p, b, cap)
         if (e && !error) error = e
+        if (this.bound?.interrupted) return error
       }
     }
-    this.emit = emit
-    this.forEachCombination(aliveMask, bounds, this.pool, this.forward)
-    this.emit = null
     return error
   }
 
@@ -180,44 +216,62 @@ export class TickEngine {
     // Recorded outcomes go to a private pool, undeduplicated, with one note per outcome.
     const savedPool = this.pool
     const savedLen = this.poolLen
-    const notes: OutcomeNote[] = []
-    this.recordNotes = notes
-    this.pool = new Uint32Array(this.stride * 64)
-    this.poolLen = 0
     try {
-      for (let b = 0; b < 2; b++) {
-        if ((bounds & (1 << b)) === 0) continue
-        for (let p = 0; p < n; p++) {
-          if ((aliveMask & (1 << p)) === 0) continue
-          const start = this.poolLen
-          this.generate(p, b)
-          this.starts[b * n + p] = start
-          this.counts[b * n + p] = this.poolLen - start
+      // Outcome lists are cut at `cap` and cut again at twice the size while the successor is not
+      // among their combinations, so that a tick out of a wide choice is found without listing
+      // every choice (the same doubling as `successors`).
+      for (let cap = 64; ; cap *= 2) {
+        const notes: OutcomeNote[] = []
+        this.recordNotes = notes
+        this.pool = new Uint32Array(this.stride * 64)
+        this.poolLen = 0
+        let cut = false
+        for (let b = 0; b < 2; b++) {
+          if ((bounds & (1 << b)) === 0) continue
+          for (let p = 0; p < n; p++) {
+            if ((aliveMask & (1 << p)) === 0) continue
+            const start = this.poolLen
+            this.generate(p, b, cap)
+            cut = cut || this.lastCut
+            this.starts[b * n + p] = start
+            this.counts[b * n + p] = this.poolLen - start
+          }
         }
+        const found = this.findCombination(aliveMask, bounds, notes, dst, dstOff, want)
+        if (!cut || (found && (!want || found.matched))) return found?.choice ?? null
       }
+    } finally {
+      this.recordNotes = null
+      this.pool = savedPool
+      this.poolLen = savedLen
+    }
+  }
+
+  /** The combination of the recorded outcomes that gives dst (the one matching `want` first). */
+  private findCombination(aliveMask: number, bounds: number, notes: OutcomeNote[], dst: Uint32Array, dstOff: number,
+    want?: { stepped: number; receivedFrom: number }): { choice: TickChoice; matched: boolean } | null {
+    const { W } = this
+    const n = this.layout.n
+    {
       // Several combinations may reach the same state (a step that changes nothing, or idling).
       // When the caller says which processes stepped and which channels delivered (a lasso's
       // fair edge), the combination that matches is the one told; otherwise the first.
-      let found = null as TickChoice | null
+      let found = null as { choice: TickChoice; matched: boolean } | null
       this.forEachCombination(aliveMask, bounds, this.pool, (out, choice, stepped) => {
         for (let w = 0; w < W; w++) if (out[w] !== dst[dstOff + w]) return false
         const ns: (OutcomeNote | null)[] = []
         for (let p = 0; p < n; p++) ns.push(choice.combo[p] >= 0 ? notes[this.starts[choice.bound * n + p] + choice.combo[p]] : null)
         const candidate = { crashed: choice.crashed, stabilized: choice.stabilized, stepped, notes: ns }
-        if (!want) { found = candidate; return true }
+        if (!want) { found = { choice: candidate, matched: true }; return true }
         let receivedFrom = 0
         ns.forEach((note, p) => {
           for (const r of note?.received ?? []) receivedFrom |= 1 << (r.from * (n - 1) + (p < r.from ? p : p - 1))
         })
-        if (stepped === want.stepped && receivedFrom === want.receivedFrom) { found = candidate; return true }
-        if (!found) found = candidate
+        if (stepped === want.stepped && receivedFrom === want.receivedFrom) { found = { choice: candidate, matched: true }; return true }
+        if (!found) found = { choice: candidate, matched: false }
         return false
       })
       return found
-    } finally {
-      this.recordNotes = null
-      this.pool = savedPool
-      this.poolLen = savedLen
     }
   }
 
@@ -227,21 +281,33 @@ export class TickEngine {
     this.poolLen = 0
   }
 
-  /** Fills starts/counts for process p under bound setting b from the memo; returns its error. */
-  private outcomesOf(p: number, b: number): ModelError | null {
+  /**
+   * Fills starts/counts for process p under bound setting b from the memo, or generates the list
+   * (cut at `cap` distinct outcomes; a cut list is not memoized); returns its error.
+   */
+  private outcomesOf(p: number, b: number, cap: number): ModelError | null {
     const { W, cur, key, layout } = this
     const pm = layout.procMask[p]
     const im = layout.inMask[p]
     for (let w = 0; w < W; w++) key[w] = cur[w] & (pm[w] | im[w])
     key[W] = p * 2 + b
-    const before = this.memo.size
-    const idx = this.memo.insert(key, 0)
     const slot = b * layout.n + p
-    if (idx < before) {
-      this.starts[slot] = this.memoStart[idx]
-      this.counts[slot] = this.memoCount[idx]
-      return this.memoError.get(idx) ?? null
+    const known = this.memo.lookup(key, 0)
+    if (known >= 0) {
+      this.starts[slot] = this.memoStart[known]
+      this.counts[slot] = this.memoCount[known]
+      return this.memoError.get(known) ?? null
     }
+    const start = this.poolLen
+    const err = this.generate(p, b, cap)
+    const cut = this.lastCut
+    this.starts[slot] = start
+    this.counts[slot] = this.poolLen - start
+    if (cut || this.bound?.interrupted) {
+      this.cut = this.cut || cut
+      return err
+    }
+    const idx = this.memo.insert(key, 0)
     if (idx >= this.memoStart.length) {
       const s = new Int32Array(this.memoStart.length * 2)
       s.set(this.memoStart)
@@ -250,21 +316,18 @@ export class TickEngine {
       c.set(this.memoCount)
       this.memoCount = c
     }
-    const start = this.poolLen
-    const err = this.generate(p, b)
     this.memoStart[idx] = start
     this.memoCount[idx] = this.poolLen - start
-    this.starts[slot] = start
-    this.counts[slot] = this.poolLen - start
     if (err) this.memoError.set(idx, err)
     return err
   }
 
   /**
    * Appends the distinct outcomes of alive process p in the current state, under the bound when
-   * b = 1, to the pool (with notes in record mode). Returns the first model error met.
+   * b = 1, to the pool (with notes in record mode). Returns the first model error met; `lastCut`
+   * says whether the list was cut at `cap` distinct outcomes (or abandoned on the expansion's stop).
    */
-  private generate(p: number, b: number): ModelError | null {
+  private generate(p: number, b: number, cap = Infinity): ModelError | null {
     const { layout, program, cur, loc0 } = this
     const n = layout.n
     // Unpack the process's local values once; every run starts from a copy.
@@ -317,8 +380,12 @@ export class TickEngine {
     }
 
     let error: ModelError | null = null
+    let cut = false
+    let runs = 0
+    const poolStart = this.poolLen
+    const bound = this.bound
     const subsets = 2 ** opt
-    for (let s = 0; s < subsets; s++) {
+    subsetLoop: for (let s = 0; s < subsets; s++) {
       // Everything not optional is forced; optional item x is taken when bit x of s is set.
       for (let x = 0; x < items; x++) this.itemChosen[x] = 1
       for (let x = 0; x < opt; x++) this.itemChosen[this.optItems[x]] = (s / 2 ** x) & 1 ? 1 : 0
@@ -333,6 +400,12 @@ export class TickEngine {
       program.self = p
       program.resetChoices()
       do {
+        // A wide choice (`one of 0..2147483647`) or many choices in one step are runs of this loop.
+        if (bound !== null && (++runs & 1023) === 0 && bound.stop !== undefined && bound.stop()) {
+          bound.interrupted = true
+          cut = true
+          break subsetLoop
+        }
         program.loc.set(loc0)
         program.resetRun()
         try {
@@ -345,6 +418,12 @@ export class TickEngine {
         } catch (e) {
           if (!(e instanceof ExecFault)) throw e
           if (!error) error = this.faultToError(e, p)
+          // Every other run may fault too (`one of 0..2147483647` into a small type): stop here
+          // when the caller stops at the first error anyway.
+          if (bound !== null && bound.stopAtError === true) {
+            cut = true
+            break subsetLoop
+          }
           continue
         }
         this.beginCandidate()
@@ -353,6 +432,10 @@ export class TickEngine {
         this.writeSends(p)
         this.cand[2 * this.W + 1] = recv
         this.commit(record ? this.noteOfRun(p) : null)
+        if ((record ? this.poolLen - poolStart : this.dedupe.size) >= cap) {
+          cut = true
+          break subsetLoop
+        }
       } while (program.nextChoice())
     }
     if (!record) {
@@ -363,6 +446,7 @@ export class TickEngine {
       this.pool.set(d.subarray(0, count * this.stride), this.poolLen * this.stride)
       this.poolLen += count
     }
+    this.lastCut = cut
     return error
   }
 
@@ -475,13 +559,16 @@ export class TickEngine {
    * Runs `visit` on every successor combination: crash subsets of the alive processes (with
    * `faults crash`), then the allowed bound settings, then one pooled outcome per process that
    * takes part. `starts`/`counts` must be filled for every alive process and allowed setting.
+   * Returns true when `visit` ended the enumeration (or the expansion's stop did).
    */
   private forEachCombination(
     aliveMask: number,
     bounds: number,
     pool: Uint32Array,
     visit: (dst: Uint32Array, choice: { crashed: number; stabilized: boolean; bound: number; combo: Int32Array }, stepped: number, recv: number) => unknown,
-  ): void {
+  ): boolean {
+    const expansion = this.bound
+    let visits = 0
     const { layout, W, cur, dst, base, liveIn, live, combo, starts, counts, stride } = this
     const n = layout.n
     const crashes = this.program.protocol.faults === 'crash'
@@ -531,7 +618,11 @@ export class TickEngine {
             recv |= pool[o + 2 * W + 1]
           }
           if (layout.stable && b === 1) dst[layout.stable.word] |= 1 << layout.stable.shift
-          if (visit(dst, choice, stepped, recv >>> 0) === true) return
+          if (visit(dst, choice, stepped, recv >>> 0) === true) return true
+          if (expansion !== null && (++visits & 4095) === 0 && expansion.stop !== undefined && expansion.stop()) {
+            expansion.interrupted = true
+            return true
+          }
           // Odometer over the live processes' outcome lists.
           let k = L - 1
           while (k >= 0) {
@@ -546,5 +637,6 @@ export class TickEngine {
       if (c === 0) break
       c = (c - 1) & aliveMask
     }
+    return false
   }
 }

@@ -13,6 +13,7 @@
 import type { Formula, ProcRef, PropertyModel, ProtocolModel, Span, Term } from '../language/model'
 import type { Reason } from '../result'
 import { analyzeFlow, explainScalar, type Flow, type Sink, type Source } from './flow'
+import { RULE_NAMES } from './rules'
 
 /** The result of the class check of one protocol against one property. */
 export interface ClassCheck {
@@ -52,7 +53,7 @@ class Reasons {
     const key = `${rule}:${span.line}:${span.column}`
     if (this.seen.has(key)) return
     this.seen.add(key)
-    this.list.push({ rule, line: span.line, column: span.column, message })
+    this.list.push({ rule, name: RULE_NAMES[rule], line: span.line, column: span.column, message })
   }
 
   sorted(): Reason[] {

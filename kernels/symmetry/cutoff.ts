@@ -16,21 +16,23 @@
 import type { PropertyModel, ProtocolModel } from '../language/model'
 import type { CutoffInfo } from '../result'
 import { classCheck } from './classcheck'
+import { ruleLabel } from './rules'
 import { theoremStatement } from './statement'
 
 /** What each rule guarantees, said once it has passed. */
 const PASSED: Record<number, string> = {
-  1: 'rule 1: every per-peer entry x[q] is written only from the process\'s own state and from q',
-  2: 'rule 2: no scalar carrying information from peers feeds an entry, a send or the property',
-  3: 'rule 3: every broadcast depends only on the process\'s own state, with own fields',
-  4: 'rule 4: every send to q depends only on own state and on q (a reply to the handled peer included)',
-  5: 'rule 5: no aggregate feeds an entry, a send or the property',
-  6: 'rule 6: the property is next-free, quantified with forall, and each atom speaks of one process or of one process\'s view of the other',
+  1: 'peer-entries (rule 1): every per-peer entry x[q] is written only from the process\'s own state and from q',
+  2: 'mixed-silent (rule 2): no scalar carrying information from peers feeds an entry, a send or the property',
+  3: 'own-broadcast (rule 3): every broadcast depends only on the process\'s own state, with own fields',
+  4: 'peer-reply (rule 4): every send to q depends only on own state and on q (a reply to the handled peer included)',
+  5: 'no-aggregate (rule 5): no aggregate feeds an entry, a send or the property',
+  6: 'property-form (rule 6): the property is next-free, quantified with forall, and each atom speaks of one process or of one process\'s view of the other',
 }
 
 function ruleList(rules: number[]): string {
-  if (rules.length === 1) return `rule ${rules[0]} fails`
-  return `rules ${rules.slice(0, -1).join(', ')} and ${rules[rules.length - 1]} fail`
+  const labels = rules.map((r) => ruleLabel(r))
+  if (labels.length === 1) return `${labels[0]} fails`
+  return `${labels.slice(0, -1).join(', ')} and ${labels[labels.length - 1]} fail`
 }
 
 /**
@@ -47,7 +49,7 @@ export function decideCutoff(protocol: ProtocolModel, property: PropertyModel): 
     return {
       applies: false,
       processes: null,
-      statement: `${ruleList(rules)}; give explicit sizes, as in \`for 2..3 processes\``,
+      statement: `${ruleList(rules)}; give explicit sizes, as in \`at N = 2..3\``,
       tex: '',
       passed: [],
       reasons: check.reasons,

@@ -180,7 +180,7 @@ export class CheckLineView {
         else chosen.delete(i)
         diagram.replaceChildren(toFragment(counterexampleSvg(cx, row.processes, { atoms: [...chosen] })))
       })
-      return el('label', { class: 'atom-choice' }, box, el('span', { class: 'swatch', style: `background:${atomColour(i)}` }), `a${i + 1}: ${a.text}`)
+      return el('label', { class: 'atom-choice' }, box, el('span', { class: 'swatch', style: `background:${atomColour(i)}` }), a.text)
     })
     return el('fieldset', { class: 'atom-chooser' }, el('legend', {}, 'shade where these hold'), ...boxes)
   }

@@ -125,12 +125,13 @@ export function counterexampleSvg(cx: Counterexample, processes: number, opts: D
   }
   atoms.forEach((a, col) => {
     const x = atomsX + col * ATOM_COL
-    parts.push(html`<text class="atom-key" x="${x + ATOM_COL / 2 - 2}" y="${TOP - 16}" text-anchor="middle">${`a${a.i + 1}`}</text>`)
+    // The column is keyed by its colour; the atom's text (processes filled in) is in the legend.
+    parts.push(html`<rect class="atom-key" x="${x + ATOM_COL / 2 - 8}" y="${TOP - 26}" width="12" height="12" fill="${atomColour(a.i)}"><title>${a.text}</title></rect>`)
     parts.push(html`<rect class="atom-track" x="${x}" y="${TOP}" width="${ATOM_COL - 4}" height="${states * ROW}" />`)
     a.values.forEach((v, k) => {
       if (v && k < states) parts.push(html`<rect class="atom-band" x="${x}" y="${TOP + k * ROW}" width="${ATOM_COL - 4}" height="${ROW}" fill="${atomColour(a.i)}"><title>${a.text} holds ${k === 0 ? 'at the start' : `after tick ${cx.ticks[k - 1].tick}`}</title></rect>`)
     })
-    parts.push(html`<rect x="${LEFT}" y="${legendY + col * 18 - 10}" width="12" height="12" fill="${atomColour(a.i)}" /><text class="legend" x="${LEFT + 18}" y="${legendY + col * 18}">${`a${a.i + 1}`}: ${a.text}</text>`)
+    parts.push(html`<rect x="${LEFT}" y="${legendY + col * 18 - 10}" width="12" height="12" fill="${atomColour(a.i)}" /><text class="legend" x="${LEFT + 18}" y="${legendY + col * 18}">${a.text}</text>`)
   })
   const title = `Counterexample (${cx.kind}): ${cx.message}`
   return html`<svg xmlns="http://www.w3.org/2000/svg" class="spacetime" role="img" width="${width}" height="${height}" viewBox="0 0 ${width} ${height}"><title>${title}</title><defs><marker id="arrowhead" viewBox="0 0 10 10" refX="9" refY="5" markerWidth="7" markerHeight="7" orient="auto-start-reverse"><path d="M 0 0 L 10 5 L 0 10 z" fill="#2f5d50" /></marker></defs><style>${raw(DIAGRAM_CSS)}</style>${parts}</svg>`.text
@@ -172,7 +173,7 @@ export function changesTable(cx: Counterexample): string {
   }
   const rows = cx.ticks.map((t, i) => {
     const lines: Markup[] = []
-    if (t.stabilized) lines.push(html`<div class="ev-stable">timing becomes bounded</div>`)
+    if (t.stabilized) lines.push(html`<div class="ev-stable">GST: the delay and idle bounds hold from here on</div>`)
     for (const p of t.crashed) lines.push(html`<div class="ev-crash">process ${p} crashes</div>`)
     if (t.stepped.length) lines.push(html`<div class="ev-step">${t.stepped.length === 1 ? 'steps' : 'step'}: ${t.stepped.join(', ')}</div>`)
     for (const r of t.received) lines.push(html`<div class="ev-recv">${r.to} receives ${r.message} from ${r.from}</div>`)

@@ -17,9 +17,12 @@ export const twofoldLanguage = LRLanguage.define({
     props: [
       styleTags({
         'protocol property check const timing faults message state on from step': t.definitionKeyword,
-        'if then else for broadcast send to skip one of with in limit processes process states': t.keyword,
+        // The check-line words are contextual keywords: these names match only where the grammar
+        // read them as keywords, so a variable called `at` or `limit` is not coloured.
+        'if then else for broadcast send to skip one of at with in within states by induction': t.keyword,
         'peer any': t.modifier,
-        'synchronous stabilizing asynchronous none crash bool': t.atom,
+        'synchronous asynchronous none crash bool': t.atom,
+        'TimingKind/eventually': t.atom,
         'always eventually next until unless forall': t.controlKeyword,
         'not and or implies iff count some every pending': t.operatorKeyword,
         Boolean: t.bool,

@@ -6,6 +6,7 @@ import type { CheckRow, CutoffInfo } from '../../kernels/result'
 import { changesTable, counterexampleSvg } from './diagram'
 import { html, raw, type Markup } from './html'
 import { texToHtml } from './tex'
+import { ruleLabel } from '../../kernels/symmetry/rules'
 
 /** Options for rendering findings. */
 export interface FindingsOptions {
@@ -60,7 +61,7 @@ export function cutoffMarkup(c: CutoffInfo, opts: FindingsOptions = {}): Markup 
     const statement = c.tex ? raw(texToHtml(c.tex, true, opts.mathmlOnly)) : html`<p>${c.statement}</p>`
     return html`<div class="cutoff applies"><div class="cutoff-head">The cutoff applies: ${c.processes === 1 ? 'one process stands' : `${c.processes} processes stand`} for every size.</div><div class="statement" aria-label="${c.statement}">${statement}</div>${c.passed.length ? html`<details class="passed-rules"><summary>the ${c.passed.length} rules it passed</summary><ul class="passed">${c.passed.map((p) => html`<li>${p}</li>`)}</ul></details>` : null}</div>`
   }
-  return html`<div class="cutoff refused"><div class="cutoff-head">The cutoff does not apply${c.statement ? html`: ${c.statement}` : null}</div><ul class="reasons">${c.reasons.map((r) => html`<li><a class="jump" href="#line-${r.line}" data-line="${r.line}" data-column="${r.column}">line ${r.line}, column ${r.column}</a> <span class="rule">rule ${r.rule}</span>: ${r.message}</li>`)}</ul></div>`
+  return html`<div class="cutoff refused"><div class="cutoff-head">The cutoff does not apply${c.statement ? html`: ${c.statement}` : null}</div><ul class="reasons">${c.reasons.map((r) => html`<li><a class="jump" href="#line-${r.line}" data-line="${r.line}" data-column="${r.column}">line ${r.line}, column ${r.column}</a> <span class="rule">${ruleLabel(r.rule, r.name)}</span>: ${r.message}</li>`)}</ul></div>`
 }
 
 /**

@@ -2,6 +2,7 @@
 // counterexamples tick by tick in a compact form, the reasons a cutoff was refused, notes, and the
 // cutoff statements the verdicts stand for.
 import type { CheckRow, Counterexample, InductionState, Report, ShownValue, TickRecord } from '../../kernels/result'
+import { ruleLabel } from '../../kernels/symmetry/rules'
 
 /** `file:line:column: message`, the form editors and CI logs link from. */
 export function diagnosticLine(path: string, line: number, column: number, message: string): string {
@@ -63,7 +64,7 @@ export function renderReport(report: Report): string {
     if (row.agreement === false) lines.push('  soundness alarm: the explicit sizes and the cutoff instance disagree')
     if (!row.cutoff.applies && row.cutoff.reasons.length) {
       lines.push('  cutoff refused:')
-      for (const reason of row.cutoff.reasons) lines.push('    ' + diagnosticLine(path, reason.line, reason.column, `rule ${reason.rule}: ${reason.message}`))
+      for (const reason of row.cutoff.reasons) lines.push('    ' + diagnosticLine(path, reason.line, reason.column, `${ruleLabel(reason.rule, reason.name)}: ${reason.message}`))
     }
     if (row.counterexample) lines.push(...renderCounterexample(row.counterexample, row.assignment))
     if (lines.length) details.push('', `${title}: ${row.verdict}`, ...lines)
@@ -123,7 +124,7 @@ export function renderInductionState(label: string, st: InductionState): string[
 export function renderTick(tick: TickRecord): string {
   const parts: string[] = []
   if (tick.crashed.length) parts.push('crash ' + tick.crashed.map((p) => `#${p}`).join(' '))
-  if (tick.stabilized) parts.push('stable')
+  if (tick.stabilized) parts.push('GST')
   parts.push(tick.stepped.length ? 'step ' + tick.stepped.map((p) => `#${p}`).join(' ') : 'no step')
   for (const m of tick.received) parts.push(`#${m.to}<-#${m.from} ${m.message}`)
   for (const m of tick.sent) parts.push(`#${m.from}->#${m.to} ${m.message}`)

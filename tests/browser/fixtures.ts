@@ -7,7 +7,7 @@ export const cutoffApplies: CutoffInfo = {
   processes: 2,
   statement: 'for every N >= 2: G_N |= forall p != q. phi(p, q) iff G_2 |= phi(1, 2)',
   tex: '\\forall N \\geq 2:\\; G_N \\models \\forall p \\neq q.\\, \\varphi(p, q) \\iff G_2 \\models \\varphi(1, 2)',
-  passed: ['rule 1: per-peer entries written only from their own peer'],
+  passed: ['peer-entries (rule 1): per-peer entries written only from their own peer'],
   reasons: [],
 }
 
@@ -17,7 +17,7 @@ export const cutoffRefused: CutoffInfo = {
   statement: 'the protocol reads an aggregate',
   tex: '',
   passed: [],
-  reasons: [{ rule: 5, line: 14, column: 7, message: "'alarm' is mixed: it is assigned from count q" }],
+  reasons: [{ rule: 5, name: 'no-aggregate', line: 14, column: 7, message: "'alarm' is mixed: it is assigned from count q" }],
 }
 
 /** A lasso in two processes: 1 sends a beat to 2, 2 crashes, 1 keeps suspecting. */

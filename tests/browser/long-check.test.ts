@@ -29,7 +29,7 @@ property small = forall p: always p.x < 1024
 \`\`\`
 
 \`\`\`check
-check depot: small for 2 processes
+check depot: small at N = 2
 \`\`\`
 `
 

@@ -66,8 +66,8 @@ describe('segment', () => {
 describe('block edits', () => {
   it('replaces a block body and nothing else', () => {
     const seg = segment(harbour)[5]
-    const next = replaceContent(harbour, seg, 'check lights: calm for 2 processes\n')
-    expect(next).toBe(harbour.replace('check lights: calm\n', 'check lights: calm for 2 processes\n'))
+    const next = replaceContent(harbour, seg, 'check lights: calm at N = 2\n')
+    expect(next).toBe(harbour.replace('check lights: calm\n', 'check lights: calm at N = 2\n'))
   })
   it('inserts a new block before another one', () => {
     const next = insertBlock(harbour, 2, 'property')

@@ -110,7 +110,7 @@ describe('twofold check', () => {
               ],
             },
           }),
-          row(1, { verdict: 'inconclusive', processes: 0, note: 'the cutoff does not apply; give explicit sizes', cutoff: { applies: false, processes: null, statement: '', tex: '', passed: [], reasons: [{ rule: 5, line: 9, column: 3, message: "an aggregate feeds 'busy'" }] } }),
+          row(1, { verdict: 'inconclusive', processes: 0, note: 'the cutoff does not apply; give explicit sizes', cutoff: { applies: false, processes: null, statement: '', tex: '', passed: [], reasons: [{ rule: 5, name: 'no-aggregate', line: 9, column: 3, message: "an aggregate feeds 'busy'" }] } }),
         ],
       }),
     })
@@ -120,7 +120,7 @@ describe('twofold check', () => {
     expect(ran.stdout).toContain('    start  #1 busy=false | #2 busy=false')
     expect(ran.stdout).toContain('    t1  crash #2 | step #1 | #1->#2 hoist | #1 busy false->true')
     expect(ran.stdout).toMatch(/-- from here the ticks repeat forever --\n {4}t2 {2}no step/)
-    expect(ran.stdout).toContain('    harbour.md:9:3: rule 5: an aggregate feeds \'busy\'')
+    expect(ran.stdout).toContain('    harbour.md:9:3: no-aggregate (rule 5): an aggregate feeds \'busy\'')
     expect(ran.stdout).toContain('  the cutoff does not apply; give explicit sizes')
   })
 

@@ -167,7 +167,7 @@ describe('the generated protocols', () => {
       ['any', /= any$/m],
       ['enum', /: \{calm, storm\}|: \{ebb, flood\}/],
       ['synchronous', /timing synchronous\(/],
-      ['stabilizing', /timing stabilizing\(/],
+      ['eventually synchronous', /timing eventually synchronous\(/],
       ['asynchronous', /timing asynchronous/],
       ['faults crash', /faults crash/],
       ['faults none', /faults none/],

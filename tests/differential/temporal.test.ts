@@ -62,7 +62,7 @@ describe('reference temporal check', () => {
     const nb = notebook(
       lamps,
       'property heard = forall p, q: correct(p) and correct(q) implies eventually p.seen[q]',
-      'check lamps: heard for 2 processes',
+      'check lamps: heard at N = 2',
     )
     expect(reference(nb, 'heard', 2)).toBe('holds')
   })
@@ -72,7 +72,7 @@ describe('reference temporal check', () => {
     const nb = notebook(
       lamps,
       'property heard = forall p, q: correct(p) implies eventually p.seen[q]',
-      'check lamps: heard for 2 processes',
+      'check lamps: heard at N = 2',
     )
     expect(reference(nb, 'heard', 2)).toBe('violated')
   })
@@ -81,19 +81,19 @@ describe('reference temporal check', () => {
     const nb = notebook(
       lamps,
       'property up = forall p: always alive(p)\nproperty kept = forall p, q: always (p.seen[q] implies always p.seen[q])',
-      'check lamps: up, kept for 2 processes',
+      'check lamps: up, kept at N = 2',
     )
     expect(reference(nb, 'up', 2)).toBe('violated')
     expect(reference(nb, 'kept', 2)).toBe('holds')
   })
 
-  it('stabilizing runs eventually deliver within the bound', () => {
+  it('eventually synchronous runs eventually deliver within the bound', () => {
     // Before `stable` a flash may wait forever only on runs that never stabilize, and those are
     // unfair; so on fair runs the pending flash is eventually taken and seen becomes true.
     const nb = notebook(
-      lamps.replace('timing asynchronous', 'timing stabilizing(delay: 1, idle: 1)').replace('faults crash', 'faults none'),
+      lamps.replace('timing asynchronous', 'timing eventually synchronous(delay: 1, idle: 1)').replace('faults crash', 'faults none'),
       'property heard = forall p, q: eventually p.seen[q]',
-      'check lamps: heard for 2 processes',
+      'check lamps: heard at N = 2',
     )
     expect(reference(nb, 'heard', 2)).toBe('holds')
   })

@@ -141,8 +141,8 @@ describe('agreement with the reference interpreter', () => {
   const fixtures: [string, string, number][] = [
     ['lock-step pair with crashes', heardPair('synchronous(delay: 1, idle: 1)', 'crash'), 2],
     ['asynchronous pair with crashes', heardPair('asynchronous', 'crash'), 2],
-    ['stabilizing harbour with fields and choices', `protocol harbour {
-  timing stabilizing(delay: 2, idle: 2)
+    ['eventually synchronous harbour with fields and choices', `protocol harbour {
+  timing eventually synchronous(delay: 2, idle: 2)
   faults crash
   message ping(n: 0..1)
   state c: 0..2 = any

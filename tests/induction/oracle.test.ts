@@ -81,7 +81,7 @@ describe('induction against its oracles', () => {
       if (first.diagnostics.some((d) => d.severity === 'error')) continue
       const r = new Random(seed * 101)
       for (const text of candidates(first.protocols[0], r)) {
-        const nb = analyzeNotebook(`${base}\n\`\`\`property\nproperty cand = ${text}\n\`\`\`\n\n\`\`\`check\ncheck ${first.protocols[0].name}: cand for 2 processes\n\`\`\`\n`)
+        const nb = analyzeNotebook(`${base}\n\`\`\`property\nproperty cand = ${text}\n\`\`\`\n\n\`\`\`check\ncheck ${first.protocols[0].name}: cand at N = 2\n\`\`\`\n`)
         if (nb.diagnostics.some((d) => d.severity === 'error')) continue
         const protocol = nb.protocols[0]
         const props = nb.checks[0].properties

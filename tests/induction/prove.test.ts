@@ -10,7 +10,7 @@ afterAll(async () => { await (await loadSolver()).close() })
 
 describe('proof by induction', () => {
   test('a true invariant that is not inductive: inconclusive with a counterexample to induction, s unreachable', async () => {
-    const [row] = await inductionRows(lanternsNotebook([CALM], ['check lanterns: calm for 2 processes']))
+    const [row] = await inductionRows(lanternsNotebook([CALM], ['check lanterns: calm at N = 2']))
     expect(row.method).toBe('induction')
     expect(row.verdict).toBe('inconclusive')
     expect(row.solver).toMatch(/^z3-solver 5\.2\.0/)
@@ -26,12 +26,12 @@ describe('proof by induction', () => {
     expect(after.processes[p - 1].values[`dark[${q}]`]).toBe(true)
     expect(row.note).toMatch(/not among them.*add a property that excludes this state/)
     // Oracle: the explorer agrees that calm holds at this size.
-    const explored = await runNotebook(lanternsNotebook([CALM], ['check lanterns: calm for 2 processes']), 'x.md')
+    const explored = await runNotebook(lanternsNotebook([CALM], ['check lanterns: calm at N = 2']), 'x.md')
     expect(explored.checks[0].verdict).toBe('holds')
   }, 60_000)
 
   test('the strengthening makes it inductive, at sizes exploration checks too', async () => {
-    const text = lanternsNotebook([CALM, FRESH], ['check lanterns: calm, fresh for 2..3 processes'])
+    const text = lanternsNotebook([CALM, FRESH], ['check lanterns: calm, fresh at N = 2..3'])
     const rows = await inductionRows(text)
     expect(rows.map((r) => [r.property, r.processes, r.verdict])).toEqual([
       ['calm', 2, 'holds'], ['calm', 3, 'holds'], ['fresh', 2, 'holds'], ['fresh', 3, 'holds'],
@@ -42,14 +42,14 @@ describe('proof by induction', () => {
   }, 60_000)
 
   test('an initial state that breaks the property: violated with a trace of zero ticks', async () => {
-    const [row] = await inductionRows(lanternsNotebook(['property lit = forall p, q: always p.quiet[q] = 1'], ['check lanterns: lit for 2 processes']))
+    const [row] = await inductionRows(lanternsNotebook(['property lit = forall p, q: always p.quiet[q] = 1'], ['check lanterns: lit at N = 2']))
     expect(row.verdict).toBe('violated')
     expect(row.counterexample!.kind).toBe('trace')
     expect(row.counterexample!.ticks).toEqual([])
   }, 60_000)
 
   test('a reachable counterexample to induction: violated with the real shortest trace', async () => {
-    const text = lanternsNotebook(['property never = forall p, q: always not p.dark[q]'], ['check lanterns: never for 2 processes'])
+    const text = lanternsNotebook(['property never = forall p, q: always not p.dark[q]'], ['check lanterns: never at N = 2'])
     const [row] = await inductionRows(text)
     expect(row.verdict).toBe('violated')
     expect(row.counterexample!.kind).toBe('trace')
@@ -60,7 +60,7 @@ describe('proof by induction', () => {
   }, 60_000)
 
   test('a property that is not `always S` is a located error', async () => {
-    const [row] = await inductionRows(lanternsNotebook(['property later = forall p, q: eventually p.dark[q]'], ['check lanterns: later for 2 processes']))
+    const [row] = await inductionRows(lanternsNotebook(['property later = forall p, q: eventually p.dark[q]'], ['check lanterns: later at N = 2']))
     expect(row.verdict).toBe('error')
     expect(row.note).toMatch(/^line \d+, column \d+: `later` cannot be proved by induction/)
   }, 60_000)
@@ -68,7 +68,7 @@ describe('proof by induction', () => {
   test('an encoding beyond the budget is inconclusive with the reason, never holds', async () => {
     const { proveInduction } = await import('../../kernels/induction/prove')
     const { inductionModel } = await import('./fixtures')
-    const model = inductionModel(lanternsNotebook([CALM, FRESH], ['check lanterns: calm, fresh for 3 processes']))
+    const model = inductionModel(lanternsNotebook([CALM, FRESH], ['check lanterns: calm, fresh at N = 3']))
     const proof = await proveInduction(model.protocols[0], model.checks[0].properties, 3, [2], { budget: 4 })
     expect(proof.outcome.kind).toBe('unknown')
     expect((proof.outcome as { reason: string }).reason).toMatch(/budget of 4/)
@@ -77,7 +77,7 @@ describe('proof by induction', () => {
   test('stopping interrupts the solver: inconclusive, never holds', async () => {
     const { proveInduction } = await import('../../kernels/induction/prove')
     const { inductionModel } = await import('./fixtures')
-    const model = inductionModel(lanternsNotebook([CALM, FRESH], ['check lanterns: calm, fresh for 3 processes']))
+    const model = inductionModel(lanternsNotebook([CALM, FRESH], ['check lanterns: calm, fresh at N = 3']))
     const proof = await proveInduction(model.protocols[0], model.checks[0].properties, 3, [2], { shouldStop: () => true })
     expect(proof.outcome.kind).toBe('unknown')
   }, 60_000)
@@ -86,7 +86,7 @@ describe('proof by induction', () => {
 describe('the command line shows a counterexample to induction tick-style', () => {
   test('s, the tick, s\' and the failing conjunct', async () => {
     const { renderReport } = await import('../../src/cli/table')
-    const rows = await inductionRows(lanternsNotebook([CALM], ['check lanterns: calm for 2 processes']))
+    const rows = await inductionRows(lanternsNotebook([CALM], ['check lanterns: calm at N = 2']))
     const text = renderReport({ notebook: { path: 'l.md', sha256: '' }, errors: [], checks: rows })
     expect(text).toMatch(/counterexample \(induction, 1 tick; p=#\d, q=#\d\)/)
     expect(text).toMatch(/\n {4}s {6}#1 /)
@@ -99,7 +99,7 @@ describe('the command line shows a counterexample to induction tick-style', () =
 describe('the workbench draws a counterexample to induction as a one-tick diagram', () => {
   test('s and s\' with the failing conjunct highlighted', async () => {
     const { counterexampleSvg, changesTable } = await import('../../src/app/diagram')
-    const [row] = await inductionRows(lanternsNotebook([CALM], ['check lanterns: calm for 2 processes']))
+    const [row] = await inductionRows(lanternsNotebook([CALM], ['check lanterns: calm at N = 2']))
     const cx = row.counterexample!
     expect(cx.atoms).toEqual([{ text: expect.stringMatching(/^calm at p = \d, q = \d: alive\(q\) implies not p\.dark\[q\]$/), values: [true, false] }])
     const svg = counterexampleSvg(cx, row.processes)

@@ -23,15 +23,15 @@ describe('shipped notebooks', () => {
   test('the guide uses every statement, declaration and check form at least once', () => {
     const text = readFileSync(new URL('guide.md', dir), 'utf8')
     for (const construct of [
-      'const ', 'timing synchronous(', 'timing stabilizing(', 'timing asynchronous', 'faults crash', 'faults none',
+      'const ', 'timing synchronous(', 'timing eventually synchronous(', 'timing asynchronous', 'faults crash', 'faults none',
       'message flash', 'message ring(', 'state ', '[peer]', ': bool', '..', '{calm, busy, moored}', '= any',
       'on flash from q', 'on ring(l) from q', 'step {', ' := ', '[q] := ', 'if ', '} else if ', '} else {', 'for q {',
       'broadcast flash', 'broadcast ring(', 'send nod to q', 'one of {', 'one of 0..', 'skip',
       ' + ', ' - ', ' * ', ' / ', ' % ', 'min(', 'max(', ' = ', ' != ', ' < ', ' <= ', ' > ', ' >= ', ' and ', ' or ',
       'not ', ' implies ', 'if level = top then busy else calm', 'count q:', 'some q:', 'every r:',
       'forall p, q:', 'forall p:', 'always', 'eventually', 'next', ' until ', ' unless ', ' iff ', 'alive(', 'crashed(',
-      'correct(', 'faulty(', 'pending(', '#1', 'for 2..3 processes', 'for 2 processes', 'for 1 process', 'with delay in 1..2',
-      'patience = 1', 'limit 100000 states',
+      'correct(', 'faulty(', 'pending(', '#1', 'at N = 2..3', 'at N = 2', 'at N = 1', 'with delay in 1..2',
+      'patience = 1', 'within 100000 states',
     ]) {
       expect(text, construct).toContain(construct)
     }

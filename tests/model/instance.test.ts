@@ -105,17 +105,17 @@ describe('asynchronous timing', () => {
   })
 })
 
-describe('stabilizing timing', () => {
+describe('eventually synchronous timing', () => {
   it('a lone counter mod 2 with idle bound 2 has 8 states and 20 transitions', () => {
     // (c, idle, stable). Unstable: step -> (c+1, 0), idle -> (c, 1), each staying unstable or
     // setting stable; once the bound applies, idle 1 forces the step. From (c,0,0): 2 + 2;
     // from (c,1,0): 2 + 1; from (c,0,1): 2; from (c,1,1): 1. All 8 reachable:
     // 2*4 + 2*3 + 2*2 + 2*1 = 20.
-    expect(counts(counter('stabilizing(delay: 1, idle: 2)', 2), 1)).toEqual([8, 20])
+    expect(counts(counter('eventually synchronous(delay: 1, idle: 2)', 2), 1)).toEqual([8, 20])
   })
 
   it('starts unstable and never unsets the flag', () => {
-    const inst = instanceOf(counter('stabilizing(delay: 1, idle: 2)', 2), 1)
+    const inst = instanceOf(counter('eventually synchronous(delay: 1, idle: 2)', 2), 1)
     const init = inst.initialStates()
     expect(JSON.parse(canonicalState(inst, init, 0)).stable).toBe(0)
     const r = explore(inst)

@@ -95,8 +95,8 @@ describe('property terms', () => {
     expect(() => compileTerm(inst, { k: 'alive', proc: { k: 'fixed', n: 3, span: sp }, span: sp }, [])).toThrow(/#3/)
   })
 
-  it('reads the stable flag under stabilizing, and true elsewhere', () => {
-    const stab = instanceOf(harbour.replace('synchronous(delay: 2, idle: 1)', 'stabilizing(delay: 2, idle: 1)'), 1)
+  it('reads the stable flag under eventually synchronous, and true elsewhere', () => {
+    const stab = instanceOf(harbour.replace('synchronous(delay: 2, idle: 1)', 'eventually synchronous(delay: 2, idle: 1)'), 1)
     const init = stab.initialStates()
     expect(isStable(stab)(init, 0)).toBe(false)
     const sync = instanceOf(harbour, 1)

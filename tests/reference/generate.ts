@@ -89,7 +89,7 @@ class ProtocolWriter {
     const cap = r.int(1, 2)
     this.consts.push({ name: 'cap', value: cap })
     lines.push(`  const cap = ${cap}`)
-    const timing = r.pick(['synchronous', 'stabilizing', 'asynchronous'] as const)
+    const timing = r.pick(['synchronous', 'eventually synchronous', 'asynchronous'] as const)
     if (timing === 'asynchronous') lines.push('  timing asynchronous')
     else {
       const delay = r.int(1, 2)
@@ -414,8 +414,8 @@ export function generateProperties(
     '```',
     '',
     '```check',
-    `check ${protocol.name}: solo for 1..2 processes limit ${limit} states`,
-    `check ${protocol.name}: pair for 2 processes limit ${limit} states`,
+    `check ${protocol.name}: solo at N = 1..2 within ${limit} states`,
+    `check ${protocol.name}: pair at N = 2 within ${limit} states`,
     '```',
     '',
   ].join('\n')

@@ -43,7 +43,7 @@ describe('canonical form', () => {
     ])
   })
 
-  it('omits idle and ages under asynchronous and adds stable under stabilizing', () => {
+  it('omits idle and ages under asynchronous and adds stable under eventually synchronous', () => {
     const a = referenceReachable(protocolOf(lighthouse('asynchronous')), 2)
     for (const s of a.states) {
       const o = parsed(s)
@@ -51,7 +51,7 @@ describe('canonical form', () => {
       expect('stable' in o).toBe(false)
       for (const items of Object.values(o.channels) as string[][]) for (const m of items) expect(m).toBe('flash')
     }
-    const b = referenceReachable(protocolOf(lighthouse('stabilizing(delay: 1, idle: 1)')), 2)
+    const b = referenceReachable(protocolOf(lighthouse('eventually synchronous(delay: 1, idle: 1)')), 2)
     for (const s of b.states) expect([0, 1]).toContain(parsed(s).stable)
   })
 })
@@ -135,14 +135,14 @@ describe('asynchronous ticks', () => {
   })
 })
 
-describe('stabilizing ticks', () => {
+describe('eventually synchronous ticks', () => {
   it('the stable flag is set once and the bound applies from that tick', () => {
     // One process toggling lamp, idle 1. (lamp, stable): (0,0) -> (0,0) idle | (1,0) step |
     // (1,1) stable now, so it must step; (1,0) -> (1,0) | (0,0) | (0,1); (1,1) -> (0,1) -> (1,1).
     // 4 states, 3 + 3 + 1 + 1 pairs.
     const r = referenceReachable(
       protocolOf(`protocol signal {
-  timing stabilizing(delay: 1, idle: 1)
+  timing eventually synchronous(delay: 1, idle: 1)
   state lamp: bool = false
   step { lamp := not lamp }
 }`),

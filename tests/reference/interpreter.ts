@@ -33,7 +33,7 @@ interface Item {
   age: number
 }
 
-/** A global state: processes, channels indexed by sender * N + receiver, the stabilizing flag. */
+/** A global state: processes, channels indexed by sender * N + receiver, the `stable` flag (GST has passed). */
 interface Global {
   procs: Proc[]
   chans: Item[][]
@@ -45,7 +45,7 @@ interface Instance {
   p: ProtocolModel
   n: number
   consts: number[]
-  timing: 'synchronous' | 'stabilizing' | 'asynchronous'
+  timing: 'synchronous' | 'eventually synchronous' | 'asynchronous'
   delay: number
   idle: number
   /** Integer bounds of every var type and every message field type, evaluated once. */
@@ -90,9 +90,24 @@ function truth(x: number): boolean {
 }
 
 /**
- * Integer arithmetic as plain mathematics on small integers. Division truncates toward zero and
- * `%` takes the sign of the dividend (the usual machine-integer convention); both raise a model
- * error on a zero divisor.
+ * Exact integer arithmetic: `+ - * / %` are computed on BigInt, so a rounded result cannot hide
+ * here. The checker refuses every expression whose intermediate values could leave the safe
+ * integers (kernels/language/bounds.ts); a result outside them is therefore a checker defect, and
+ * the reference says so rather than going on with an inexact number.
+ */
+export function exactArith(op: '+' | '-' | '*' | '/' | '%', a: number, b: number): number {
+  const x = BigInt(a)
+  const y = BigInt(b)
+  const r = op === '+' ? x + y : op === '-' ? x - y : op === '*' ? x * y : op === '/' ? x / y : x % y
+  const v = Number(r)
+  if (!Number.isSafeInteger(v) || BigInt(v) !== r) throw new Error(`the reference met ${r}, outside the safe integers: the checker should have refused this expression`)
+  return v
+}
+
+/**
+ * Integer arithmetic as plain mathematics (exactArith). Division truncates toward zero and `%`
+ * takes the sign of the dividend (the usual machine-integer convention); both raise a model error
+ * on a zero divisor.
  */
 function evalExpr(e: Expr, l: Local | null, env: Env, consts: number[], n: number): number {
   const ev = (x: Expr) => evalExpr(x, l, env, consts, n)
@@ -135,15 +150,10 @@ function evalExpr(e: Expr, l: Local | null, env: Env, consts: number[], n: numbe
       const a = ev(e.left)
       const b = ev(e.right)
       switch (e.op) {
-        case '+': return a + b
-        case '-': return a - b
-        case '*': return a * b
-        case '/':
+        case '+': case '-': case '*': return exactArith(e.op, a, b)
+        case '/': case '%':
           if (b === 0) throw new ModelError(`division by zero at line ${e.span.line}`)
-          return Math.trunc(a / b)
-        case '%':
-          if (b === 0) throw new ModelError(`division by zero at line ${e.span.line}`)
-          return a % b
+          return exactArith(e.op, a, b)
         case '=': return a === b ? 1 : 0
         case '!=': return a !== b ? 1 : 0
         case '<': return a < b ? 1 : 0
@@ -329,7 +339,7 @@ function showMessage(inst: Instance, it: Item): string {
  * The canonical form of a global state, from the DEVELOPERS.md text:
  * `{procs: [{alive, idle?, vars: {name: value}, peers: {name: {"j": value}}}],
  *   channels: {"j->i": ["kind(v,..)@age", ...sorted]}, stable?}` with keys sorted, processes
- * 1-based in keys, `idle` and `@age` omitted under asynchronous, `stable` only under stabilizing.
+ * 1-based in keys, `idle` and `@age` omitted under asynchronous, `stable` only under eventually synchronous.
  * Every one of the N(N-1) channels is listed, empty ones as [].
  */
 function canonical(inst: Instance, g: Global): string {
@@ -343,7 +353,7 @@ function canonical(inst: Instance, g: Global): string {
     }
   }
   const o: Record<string, unknown> = { procs, channels }
-  if (inst.timing === 'stabilizing') o.stable = g.stable
+  if (inst.timing === 'eventually synchronous') o.stable = g.stable
   return sortedJson(o)
 }
 
@@ -496,7 +506,7 @@ function successors(inst: Instance, g: Global, errors: string[], budget: { left:
   const { n } = inst
   const alive: number[] = []
   for (let i = 0; i < n; i++) if (g.procs[i].alive) alive.push(i)
-  const stableChoices = inst.timing === 'stabilizing' && !g.stable ? [0, 1] : [g.stable]
+  const stableChoices = inst.timing === 'eventually synchronous' && !g.stable ? [0, 1] : [g.stable]
   const crashMasks = inst.p.faults === 'crash' ? 1 << alive.length : 1
   const out: string[] = []
   const movesCache = new Map<string, Move[]>()
@@ -506,8 +516,8 @@ function successors(inst: Instance, g: Global, errors: string[], budget: { left:
   for (let j = 0; j < n; j++) for (let i = 0; i < n; i++) if (i !== j) chanOrder.push([j, i, JSON.stringify(`${j + 1}->${i + 1}`)])
   chanOrder.sort((x, y) => (x[2] < y[2] ? -1 : x[2] > y[2] ? 1 : 0))
   for (const stable of stableChoices) {
-    const bounded = inst.timing === 'synchronous' || (inst.timing === 'stabilizing' && stable === 1)
-    const tail = inst.timing === 'stabilizing' ? `],"stable":${stable}}` : ']}'
+    const bounded = inst.timing === 'synchronous' || (inst.timing === 'eventually synchronous' && stable === 1)
+    const tail = inst.timing === 'eventually synchronous' ? `],"stable":${stable}}` : ']}'
     for (let cm = 0; cm < crashMasks; cm++) {
       const crashed = new Set(alive.filter((_, b) => (cm >> b) & 1))
       const up = (i: number) => g.procs[i].alive === 1 && !crashed.has(i)
@@ -547,7 +557,7 @@ function successors(inst: Instance, g: Global, errors: string[], budget: { left:
  * The fairness conditions of semantics.md that this tick meets, as bits: bit i when process i
  * steps or is down (crashed now or before: a process down in a cycle never comes back); bit
  * n + j * n + i when channel j->i was empty at the start of the tick, or i received from it, or i is
- * down; bit n + n * n when the tick ends stable (stabilizing only; otherwise always set).
+ * down; bit n + n * n when the tick ends stable (eventually synchronous only; otherwise always set).
  */
 function fairMarks(inst: Instance, g: Global, pick: (Move | null)[], stable: number): number {
   const { n } = inst
@@ -560,7 +570,7 @@ function fairMarks(inst: Instance, g: Global, pick: (Move | null)[], stable: num
       if (mv === null || g.chans[j * n + i].length === 0 || mv.taken[j].size > 0) m |= 1 << (n + j * n + i)
     }
   }
-  if (inst.timing !== 'stabilizing' || stable === 1) m |= 1 << (n + n * n)
+  if (inst.timing !== 'eventually synchronous' || stable === 1) m |= 1 << (n + n * n)
   return m
 }
 

@@ -7,7 +7,7 @@
 import type { PropertyModel, ProtocolModel, Term } from '../../kernels/language/model'
 import { allAcceptance, labelHolds, ltlToAutomaton, transitionMarks } from '../../kernels/logic/automaton'
 import { fromModel, not } from '../../kernels/logic/ltl'
-import { allFairMarks, type ReferenceState, referenceGraph } from './interpreter'
+import { allFairMarks, exactArith, ModelError, type ReferenceState, referenceGraph } from './interpreter'
 
 /** The reference verdict of a temporal property on G_n under one assignment of its process variables. */
 export interface TemporalResult {
@@ -47,11 +47,11 @@ function term(t: Term, s: ReferenceState, n: number, procs: number[], consts: nu
       const a = ev(t.left)
       const b = ev(t.right)
       switch (t.op) {
-        case '+': return a + b
-        case '-': return a - b
-        case '*': return a * b
-        case '/': return b === 0 ? 0 : Math.trunc(a / b)
-        case '%': return b === 0 ? 0 : a % b
+        case '+': case '-': case '*': return exactArith(t.op, a, b)
+        case '/': case '%':
+          // A zero divisor is a model error at the operator, as in protocols (semantics.md).
+          if (b === 0) throw new ModelError(`division by zero in a property at line ${t.span.line}, column ${t.span.column}`)
+          return exactArith(t.op, a, b)
         case '=': return a === b ? 1 : 0
         case '!=': return a !== b ? 1 : 0
         case '<': return a < b ? 1 : 0
@@ -68,7 +68,7 @@ function term(t: Term, s: ReferenceState, n: number, procs: number[], consts: nu
  * Checks `property` on G_n of `protocol` with its variables bound to `assignment` (1-based process
  * numbers, one per quantified variable, e.g. [1, 2] for p = 1, q = 2). A fair run is one whose cycle
  * meets every fairness bit of the reference graph (every process steps or is down, every channel is
- * empty, received from or has a down receiver, and under stabilizing the run is stable).
+ * empty, received from or has a down receiver, and under eventually synchronous the run is stable).
  */
 export function referenceTemporal(
   protocol: ProtocolModel,
@@ -87,13 +87,19 @@ export function referenceTemporal(
   const terms: Term[] = []
   const ltl = fromModel(property.formula, (t) => terms.push(t) - 1)
   const aut = ltlToAutomaton(not(ltl))
-  const letters = g.states.map((s) => {
-    let m = 0
-    terms.forEach((t, a) => {
-      if (term(t, s, n, procs, g.constants) !== 0) m |= 1 << a
+  let letters: number[]
+  try {
+    letters = g.states.map((s) => {
+      let m = 0
+      terms.forEach((t, a) => {
+        if (term(t, s, n, procs, g.constants) !== 0) m |= 1 << a
+      })
+      return m
     })
-    return m
-  })
+  } catch (err) {
+    if (err instanceof ModelError) return { verdict: 'violated', states: g.keys.length, modelError: err.message }
+    throw err
+  }
   // Product nodes (state, automaton state) numbered as found; edges with both kinds of marks.
   const id = new Map<number, number>()
   const nodeState: number[] = []

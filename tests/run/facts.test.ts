@@ -38,7 +38,7 @@ describe('heartbeat detector with a growing timeout (notebooks/depot-radios.md)'
     expect(loop).toBeLessThan(cx.ticks.length)
     // Nobody crashes anywhere in the run, so both processes are correct.
     expect(cx.ticks.flatMap((t) => t.crashed)).toEqual([])
-    const suspect = cx.atoms!.find((a) => a.text === 'p.suspect[q]')!
+    const suspect = cx.atoms!.find((a) => a.text === `#${unbounded[0].assignment.p}.suspect[#${unbounded[0].assignment.q}]`)!
     // States 0..ticks.length; the loop covers states loopStart..ticks.length (the last equals loopStart).
     const inLoop = suspect.values.slice(loop)
     expect(inLoop).toContain(true)

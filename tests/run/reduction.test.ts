@@ -28,7 +28,7 @@ property single = forall p: always (p.rung or not p.rung)
 property two = forall p, q: always p.heard[q] <= ${bound}
 \`\`\`
 \`\`\`check
-check bells: single, two for ${sizes} processes
+check bells: single, two at N = ${sizes}
 \`\`\`
 `
 

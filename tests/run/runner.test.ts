@@ -50,27 +50,27 @@ describe('check semantics', () => {
   })
 
   test('with sizes where the cutoff applies, the rows say the sizes agree', () => {
-    const rows = run(lamps('    broadcast blink', '```property\nproperty capped = forall p, q: always p.seen[q] <= cap\n```\n```check\ncheck lamps: capped for 2..3 processes\n```'))
+    const rows = run(lamps('    broadcast blink', '```property\nproperty capped = forall p, q: always p.seen[q] <= cap\n```\n```check\ncheck lamps: capped at N = 2..3\n```'))
     expect(rows.map((r) => [r.processes, r.verdict, r.agreement])).toEqual([[2, 'holds', undefined], [3, 'holds', undefined]])
     expect(markAgreement(rows).map((r) => r.agreement)).toEqual([true, true])
   })
 
   test('a disagreement between sizes where the cutoff applies is flagged as a soundness alarm', () => {
-    const rows = run(lamps('    broadcast blink', '```property\nproperty capped = forall p, q: always p.seen[q] <= cap\n```\n```check\ncheck lamps: capped for 2..3 processes\n```'))
+    const rows = run(lamps('    broadcast blink', '```property\nproperty capped = forall p, q: always p.seen[q] <= cap\n```\n```check\ncheck lamps: capped at N = 2..3\n```'))
     rows[1].verdict = 'violated' // as if the kernel had a bug at N = 3
     expect(markAgreement(rows).map((r) => r.agreement)).toEqual([false, false])
   })
 
   test('with sizes where the cutoff does not apply, every assignment of distinct processes is checked', () => {
     const rows = run(lamps('    total := count q: seen[q] > 0\n    if total > 1 { broadcast blink } else { broadcast blink }',
-      '```property\nproperty early = forall p, q: always p.seen[q] <= 1\n```\n```check\ncheck lamps: early for 3 processes\n```'))
+      '```property\nproperty early = forall p, q: always p.seen[q] <= 1\n```\n```check\ncheck lamps: early at N = 3\n```'))
     expect(rows[0].cutoff.applies).toBe(false)
     expect(rows[0].verdict).toBe('violated')
     expect(rows[0].assignment).toHaveProperty('p')
   })
 
   test('reaching the state limit gives inconclusive, never holds', () => {
-    const [row] = run(lamps('    broadcast blink', '```property\nproperty capped = forall p, q: always p.seen[q] <= cap\n```\n```check\ncheck lamps: capped limit 3 states\n```'))
+    const [row] = run(lamps('    broadcast blink', '```property\nproperty capped = forall p, q: always p.seen[q] <= cap\n```\n```check\ncheck lamps: capped within 3 states\n```'))
     expect(row.verdict).toBe('inconclusive')
     expect(row.complete).toBe(false)
     expect(row.states).toBeLessThanOrEqual(3)
@@ -95,7 +95,7 @@ describe('check semantics', () => {
   })
 
   test('a stopped check is inconclusive', () => {
-    const [row] = analyzeNotebookRows(lamps('    broadcast blink', '```property\nproperty capped = forall p, q: always p.seen[q] <= cap\n```\n```check\ncheck lamps: capped for 3 processes\n```'), () => true)
+    const [row] = analyzeNotebookRows(lamps('    broadcast blink', '```property\nproperty capped = forall p, q: always p.seen[q] <= cap\n```\n```check\ncheck lamps: capped at N = 3\n```'), () => true)
     expect(row.verdict).toBe('inconclusive')
     expect(row.note).toMatch(/stopped/)
   })
@@ -107,8 +107,30 @@ describe('check semantics', () => {
     const cx = row.counterexample!
     expect(cx.kind).toBe('lasso')
     expect(cx.loopStart).toBeDefined()
-    expect(cx.atoms![0].text).toBe('p.lit')
+    expect(cx.atoms![0].text).toBe('#1.lit')
     expect(cx.atoms![0].values).toHaveLength(cx.ticks.length + 1)
+  })
+
+  test('counterexample atoms read as written, with the processes of the assignment filled in', () => {
+    const prop = '```property\nproperty early = forall p, q: always (correct(q) implies p.seen[q] <= 1)\n```\n'
+    const [granted] = run(lamps('    broadcast blink', prop + '```check\ncheck lamps: early\n```'))
+    expect(granted.verdict).toBe('violated')
+    expect(granted.assignment).toEqual({ p: 1, q: 2 })
+    expect(granted.counterexample!.atoms!.map((a) => a.text)).toEqual(['correct(#2)', '#1.seen[#2] <= 1'])
+    // Refused cutoff (an aggregate feeds a broadcast): every assignment is tried, and the atoms name
+    // the one that failed, whichever it is.
+    const [refused] = run(lamps('    total := count q: seen[q] > 0\n    if total >= 0 { broadcast blink }', prop + '```check\ncheck lamps: early at N = 3\n```'))
+    expect(refused.cutoff.applies).toBe(false)
+    expect(refused.verdict).toBe('violated')
+    const { p, q } = refused.assignment
+    expect(refused.counterexample!.atoms!.map((a) => a.text)).toEqual([`correct(#${q})`, `#${p}.seen[#${q}] <= 1`])
+  })
+
+  test('a check by induction is inconclusive in this build and says so, proving nothing', () => {
+    const [row] = run(lamps('    broadcast blink', '```property\nproperty capped = forall p, q: always p.seen[q] <= cap\n```\n```check\ncheck lamps: capped at N = 2 by induction\n```'))
+    expect(row.verdict).toBe('inconclusive')
+    expect(row.note).toMatch(/induction.*not available/)
+    expect(row.states).toBe(0)
   })
 
   test('a notebook with errors checks nothing and reports each error with its position', async () => {
@@ -125,7 +147,7 @@ function analyzeNotebookRows(text: string, shouldStop: () => boolean) {
 }
 
 describe('row plans', () => {
-  const text = lamps('    broadcast blink', '```property\nproperty a = forall p, q: always p.seen[q] <= cap\nproperty b = forall p: always not p.lit\n```\n```check\ncheck lamps: a, b for 2 processes with cap in 1..4\n```')
+  const text = lamps('    broadcast blink', '```property\nproperty a = forall p, q: always p.seen[q] <= cap\nproperty b = forall p: always not p.lit\n```\n```check\ncheck lamps: a, b at N = 2 with cap in 1..4\n```')
   test('a sweep of 2 properties x 4 constant values gives 8 rows, property first, then constants', () => {
     const plan = planRows(analyzeNotebook(text))
     expect(plan.map((p) => [p.property, p.constants[0]])).toEqual([[0, 1], [0, 2], [0, 3], [0, 4], [1, 1], [1, 2], [1, 3], [1, 4]])

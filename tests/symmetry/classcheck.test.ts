@@ -7,12 +7,17 @@ import { classCheck } from '../../kernels/symmetry/classcheck'
 import { decideCutoff } from '../../kernels/symmetry/cutoff'
 import { depot, notebook, position, PUMPS, SEEN } from './fixtures'
 
-/** Asserts that the case breaks exactly one rule, once, at the `occurrence`-th `needle`. */
+/** The short name of each rule, as cutoff.md gives them (written here, not imported). */
+const NAMES: Record<number, string> = {
+  1: 'peer-entries', 2: 'mixed-silent', 3: 'own-broadcast', 4: 'peer-reply', 5: 'no-aggregate', 6: 'property-form',
+}
+
+/** Asserts that the case breaks exactly one rule, once, at the `occurrence`-th `needle`, under the rule's name. */
 function breaksOnly(rule: number, protocolBody: string, needle: string, opts: { extra?: string; property?: string; occurrence?: number } = {}) {
   const c = notebook(depot(protocolBody, opts.extra ?? ''), [opts.property ?? SEEN])
   const { reasons } = classCheck(c.protocol, c.properties[0])
   const where = position(c.text, needle, opts.occurrence ?? 1)
-  expect(reasons.map((r) => ({ rule: r.rule, line: r.line, column: r.column }))).toEqual([{ rule, ...where }])
+  expect(reasons.map((r) => ({ rule: r.rule, name: r.name, line: r.line, column: r.column }))).toEqual([{ rule, name: NAMES[rule], ...where }])
   return reasons[0].message
 }
 

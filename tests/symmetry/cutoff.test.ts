@@ -27,7 +27,11 @@ describe('decideCutoff', () => {
   })
   it('lists the six rules as passed', () => {
     const info = decideCutoff(c.protocol, c.properties[1])
-    expect(info.passed.map((s) => s.slice(0, 6))).toEqual(['rule 1', 'rule 2', 'rule 3', 'rule 4', 'rule 5', 'rule 6'])
+    // cutoff.md gives each rule its short name; the name comes first.
+    expect(info.passed.map((s) => s.slice(0, s.indexOf(':')))).toEqual([
+      'peer-entries (rule 1)', 'mixed-silent (rule 2)', 'own-broadcast (rule 3)',
+      'peer-reply (rule 4)', 'no-aggregate (rule 5)', 'property-form (rule 6)',
+    ])
     expect(info.passed[3]).toContain('reply')
   })
   it('gives k = 1 for one quantified process', () => {
@@ -43,8 +47,8 @@ describe('decideCutoff', () => {
     expect(info.processes).toBeNull()
     expect(info.tex).toBe('')
     expect(info.passed).toEqual([])
-    expect(info.reasons.map((r) => r.rule)).toEqual([3, 5])
-    expect(info.statement).toBe('rules 3 and 5 fail; give explicit sizes, as in `for 2..3 processes`')
+    expect(info.reasons.map((r) => [r.rule, r.name])).toEqual([[3, 'own-broadcast'], [5, 'no-aggregate']])
+    expect(info.statement).toBe('own-broadcast (rule 3) and no-aggregate (rule 5) fail; give explicit sizes, as in `at N = 2..3`')
   })
   it('produces TeX that KaTeX typesets without errors', () => {
     for (const p of c.properties) {

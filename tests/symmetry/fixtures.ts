@@ -18,7 +18,7 @@ export function notebook(protocol: string, properties: string[]): Case {
   const name = /protocol\s+(\w+)/.exec(protocol)![1]
   const names = properties.map((p) => /property\s+(\w+)/.exec(p)![1])
   // A property without `forall` may only be checked at explicit sizes.
-  const sizes = properties.some((p) => !/=\s*forall/.test(p)) ? ' for 2 processes' : ''
+  const sizes = properties.some((p) => !/=\s*forall/.test(p)) ? ' at N = 2' : ''
   const text = `# Case\n\n\`\`\`protocol\n${protocol.trim()}\n\`\`\`\n\n\`\`\`property\n${properties.join('\n')}\n\`\`\`\n\n\`\`\`check\ncheck ${name}: ${names.join(', ')}${sizes}\n\`\`\`\n`
   const m = analyzeNotebook(text)
   const errors = m.diagnostics.filter((d) => d.severity === 'error')

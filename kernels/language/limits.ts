@@ -1,0 +1,54 @@
+// The limits of what a check can express or explore, in one place. The checker refuses a construct
+// beyond a limit at its line and column, the instance compiler refuses the same things again (a
+// check may override constants), and README.md lists every limit with what the user sees.
+
+/**
+ * Every integer value of a model lies in MIN_VALUE..MAX_VALUE (32-bit signed): range bounds,
+ * constants, swept values, literals. Values are packed into 32-bit words and run in 32-bit slots.
+ */
+export const MIN_VALUE = -(2 ** 31)
+export const MAX_VALUE = 2 ** 31 - 1
+
+/** The most values a range type may hold: 2^31, so that a packed field needs at most 31 bits. */
+export const MAX_RANGE_VALUES = 2 ** 31
+
+/**
+ * The most values a variable initialised with `any` may take (each is a separate initial state, per
+ * process and per peer entry).
+ */
+export const MAX_ANY_VALUES = 4096
+
+/** The most constant settings one check may sweep (the product of its `with` ranges). */
+export const MAX_SWEEP_ROWS = 10_000
+
+/** The most values one `C in A..B` item of a sweep may list. */
+export const MAX_SWEEP_VALUES = 1000
+
+/**
+ * The largest instance: processes are bits of 32-bit step and crash masks, and an exhaustive
+ * check beyond a dozen processes does not finish anyway. The checker and the instance compiler
+ * both use this constant.
+ */
+export const MAX_PROCESSES = 12
+
+/**
+ * The largest instance for a temporal property (not of the form `always P`): the fairness
+ * conditions of semantics.md, one per process, one per channel and one for `stable`, are bits of a
+ * 32-bit mark on every edge, and n + n(n-1) + 1 <= 32 holds up to n = 5.
+ */
+export const MAX_TEMPORAL_PROCESSES = 5
+
+/** The most message values (a kind's field-value combinations, summed over kinds) tracked per channel. */
+export const MAX_MESSAGE_VALUES = 1 << 16
+
+/**
+ * Integer arithmetic is exact up to 2^53 - 1 in magnitude (JavaScript's safe integers). The checker
+ * proves from the types that every intermediate value stays within this bound, and refuses an
+ * expression at its operator otherwise.
+ */
+export const MAX_SAFE = Number.MAX_SAFE_INTEGER
+
+/** True when `v` is an integer that a model may hold. */
+export function isModelValue(v: number): boolean {
+  return Number.isInteger(v) && v >= MIN_VALUE && v <= MAX_VALUE
+}

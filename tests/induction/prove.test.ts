@@ -109,3 +109,14 @@ describe('the workbench draws a counterexample to induction as a one-tick diagra
     expect(changesTable(cx)).toContain('in flight: glow')
   }, 60_000)
 })
+
+describe('`by induction` in a notebook', () => {
+  test('the runner routes the check to the engine; sizes beyond exploration hold', async () => {
+    const report = await runNotebook(lanternsNotebook([CALM, FRESH], ['check lanterns: calm, fresh at N = 2..6 by induction']), 'l.md')
+    expect(report.errors).toEqual([])
+    expect(report.checks.map((r) => [r.property, r.processes, r.method, r.verdict])).toEqual([
+      ...[2, 3, 4, 5, 6].map((n) => ['calm', n, 'induction', 'holds']),
+      ...[2, 3, 4, 5, 6].map((n) => ['fresh', n, 'induction', 'holds']),
+    ])
+  }, 120_000)
+})

@@ -64,7 +64,9 @@ export async function proveInduction(protocol: ProtocolModel, properties: Proper
   const t0 = performance.now()
   const inst = compileInstance(protocol, n, constants)
   const layout = inst.layout
-  const { z, version } = await loadSolver()
+  const handle = await loadSolver()
+  const z = handle.context()
+  const version = handle.version
   const done = (outcome: InductionOutcome): InductionProof => ({ outcome, instance: inst, solver: version, seconds: (performance.now() - t0) / 1000 })
   const budget = opts.budget ?? DEFAULT_BUDGET
   const ages = layout.tracksAges ? layout.delay : 1

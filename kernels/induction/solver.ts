@@ -10,7 +10,13 @@ export type Z3 = Context<'twofold'>
 
 /** A loaded solver: its context, and its name and version for records. */
 export interface SolverHandle {
+  /** A shared context (tests that build many small encodings). */
   z: Z3
+  /**
+   * A fresh context. A proof uses its own, so that the model the solver picks depends only on the
+   * proof's own formulas, and a replay in another process, or later in the same one, finds the same.
+   */
+  context(): Z3
   /** For records: `z3-solver <npm version> (Z3 <full version>)`. */
   version: string
   /** Ends the solver's worker threads (Node), so that a command line can exit. */
@@ -57,6 +63,7 @@ export function loadSolver(): Promise<SolverHandle> {
       const z = new api.Context('twofold') as Z3
       return {
         z,
+        context: () => new api.Context('twofold') as Z3,
         version: `z3-solver ${Z3_PACKAGE_VERSION} (Z3 ${api.getFullVersion()})`,
         async close() {
           loading = null

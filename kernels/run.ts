@@ -2,7 +2,9 @@
 // runs each row with the kernel: the class check decides the cutoff, the instance is compiled and
 // explored, invariants are checked during the search and temporal properties on the product
 // with the automaton of their negation under the fairness of semantics.md.
-import type { RowPlan, RunOptions } from './api'
+import { planOf, type RowPlan, type RunOptions } from './plan'
+// The plan lives in plan.ts; tests and tools written against run.ts still import it from here.
+export { planRows } from './plan'
 import { analyzeNotebook } from './language/analyze'
 import { instantiatedText } from './language/instantiate'
 import type { CheckModel, Formula, NotebookModel, PropertyModel, ProtocolModel, Term } from './language/model'
@@ -20,50 +22,10 @@ import { decideCutoff } from './symmetry/cutoff'
 import { RULE_NAMES } from './symmetry/rules'
 import { sha256Hex } from './record/hash'
 import { byInduction, runInductionRow, type ProofCache } from './induction/row'
-import type { CheckRow, CutoffInfo, Report } from './result'
+import type { CheckRow, CutoffInfo, Report, Verdict } from './result'
 
 /** States explored before a check without `within K states` gives up as inconclusive (memory guard). */
 export const DEFAULT_LIMIT = 4_000_000
-
-/** Every constant setting of a check: the cartesian product of its sweep, in sweep order. */
-function settings(protocol: ProtocolModel, check: CheckModel): number[][] {
-  let out: number[][] = [protocol.consts.map((c) => c.value)]
-  for (const item of check.sweep) {
-    const next: number[][] = []
-    for (const base of out) {
-      for (const v of item.values) {
-        const s = base.slice()
-        s[item.constIndex] = v
-        next.push(s)
-      }
-    }
-    out = next
-  }
-  return out
-}
-
-/**
- * The deterministic plan of a notebook's rows: checks in notebook order, then properties in the
- * order listed, then sizes, then constant settings. `only` keeps the rows whose property or
- * protocol has that name; `shard` keeps rows whose index is congruent to index-1 modulo count.
- */
-export function planRows(model: NotebookModel, opts: RunOptions = {}): RowPlan[] {
-  const plan: RowPlan[] = []
-  model.checks.forEach((check, c) => {
-    const protocol = model.protocols[check.protocol]
-    check.properties.forEach((prop, p) => {
-      if (opts.only !== undefined && opts.only !== prop.name && opts.only !== protocol.name) return
-      for (const processes of check.sizes ?? [null]) {
-        for (const constants of settings(protocol, check)) {
-          plan.push({ row: plan.length, check: c, property: p, processes, constants })
-        }
-      }
-    })
-  })
-  if (!opts.shard) return plan
-  const { index, count } = opts.shard
-  return plan.filter((r) => r.row % count === index - 1)
-}
 
 /** Does the term divide (`/` or `%`) anywhere? */
 function divides(t: Term): boolean {
@@ -323,8 +285,40 @@ function emptyCutoff(): CutoffInfo {
   return { applies: false, processes: null, statement: '', tex: '', passed: [], reasons: [] }
 }
 
-/** Runs one planned row. Never throws: a failure becomes verdict `error` with a note. */
-export function runRow(model: NotebookModel, plan: RowPlan, opts: RunOptions = {}): CheckRow {
+/**
+ * Verdicts of cutoff instances G_k already explored in one run, keyed by check, property and
+ * constants, so that every explicit size of that key compares with G_k without exploring it again.
+ */
+export type CutoffVerdicts = Map<string, Verdict>
+
+/**
+ * Runs one planned row. Never throws: a failure becomes verdict `error` with a note. A row with an
+ * explicit size n at or above the cutoff k (where the cutoff applies) is also compared with the
+ * cutoff instance G_k, explored here unless `cutoffVerdicts` already holds it: `agreement` is
+ * therefore a property of the row alone, the same whether or not the run is sharded.
+ */
+export function runRow(model: NotebookModel, plan: RowPlan, opts: RunOptions = {}, cutoffVerdicts: CutoffVerdicts = new Map()): CheckRow {
+  const row = runPlainRow(model, plan, opts)
+  const k = row.cutoff.processes
+  if (!row.cutoff.applies || k === null || row.processes < k) return row
+  const key = `${plan.check}|${plan.property}|${plan.constants.join(',')}`
+  if (row.processes === k) cutoffVerdicts.set(key, row.verdict)
+  if (plan.processes === null || (row.verdict !== 'holds' && row.verdict !== 'violated')) return row
+  let atCutoff = cutoffVerdicts.get(key)
+  if (atCutoff === undefined) {
+    atCutoff = runPlainRow(model, { ...plan, processes: k }, { shouldStop: opts.shouldStop }).verdict
+    cutoffVerdicts.set(key, atCutoff)
+  }
+  if (atCutoff !== 'holds' && atCutoff !== 'violated') return row
+  row.agreement = atCutoff === row.verdict
+  if (!row.agreement) {
+    const said = `sizes disagree: G_${row.processes} ${row.verdict === 'holds' ? 'holds' : 'is violated'} but the cutoff instance G_${k} ${atCutoff === 'holds' ? 'holds' : 'is violated'}; the cutoff claim is contradicted; please report this notebook`
+    row.note = row.note ? `${said}. ${row.note}` : said
+  }
+  return row
+}
+
+function runPlainRow(model: NotebookModel, plan: RowPlan, opts: RunOptions): CheckRow {
   const t0 = performance.now()
   const check = model.checks[plan.check]
   const protocol = model.protocols[check.protocol]
@@ -381,7 +375,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
     : undefined
   const inv = invariantBody(prop.formula)
   if (!inv && n > MAX_TEMPORAL_PROCESSES) {
-    throw new ModelSetupError(`temporal properties are checked on at most ${MAX_TEMPORAL_PROCESSES} processes (their fairness conditions fill a 32-bit mark), not ${n} (line ${prop.span.line}, column ${prop.span.column})`, prop.span)
+    throw new ModelSetupError(`temporal properties are checked on at most ${MAX_TEMPORAL_PROCESSES} processes (their fairness conditions must fit the temporal product's 31 marks), not ${n} (line ${prop.span.line}, column ${prop.span.column})`, prop.span)
   }
   const predicates = inv ? chosen.map((a) => statePredicate(inv, (t) => compileTerm(inst, t, a))) : []
   // A division in the property is evaluated in every atom on every state, whatever the connectives
@@ -517,36 +511,17 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   return row
 }
 
-/**
- * Marks, for checks with explicit sizes where the cutoff applies, whether the sizes at or above
- * the cutoff agree. A disagreement is a soundness alarm: the theorem says they cannot differ.
- */
-export function markAgreement(rows: CheckRow[]): CheckRow[] {
-  const groups = new Map<string, CheckRow[]>()
-  for (const r of rows) {
-    if (!r.cutoff.applies || r.cutoff.processes === null || r.processes < r.cutoff.processes) continue
-    if (r.verdict !== 'holds' && r.verdict !== 'violated') continue
-    const key = `${r.check}|${r.property}|${JSON.stringify(r.constants)}`
-    groups.set(key, [...(groups.get(key) ?? []), r])
-  }
-  for (const g of groups.values()) {
-    if (g.length < 2) continue
-    const agree = g.every((r) => r.verdict === g[0].verdict)
-    for (const r of g) r.agreement = agree
-  }
-  return rows
-}
-
 /** Runs every planned row of a notebook: the `--json` document of records.md. */
 export async function runNotebook(text: string, path: string, opts: RunOptions = {}): Promise<Report> {
   const model = analyzeNotebook(text)
   const sha256 = await sha256Hex(text)
   const errors = model.diagnostics.filter((d) => d.severity === 'error').map((d) => ({ line: d.line, column: d.column, message: d.message }))
   if (errors.length > 0) return { notebook: { path, sha256 }, errors, checks: [] }
+  const cutoffVerdicts: CutoffVerdicts = new Map()
   const cache: ProofCache = new Map()
-  const rows: CheckRow[] = []
-  for (const plan of planRows(model, opts)) rows.push(await runPlannedRow(model, plan, opts, cache))
-  return { notebook: { path, sha256 }, errors, checks: markAgreement(rows) }
+  const checks: CheckRow[] = []
+  for (const plan of planOf(model, opts.only).select(opts.shard)) checks.push(await runPlannedRow(model, plan, opts, cache, cutoffVerdicts))
+  return { notebook: { path, sha256 }, errors, checks }
 }
 
 /**
@@ -554,7 +529,7 @@ export async function runNotebook(text: string, path: string, opts: RunOptions =
  * (asynchronous: the solver is loaded on first use), the others to `runRow`. Rows of one check,
  * size and setting share one joint proof through `cache`.
  */
-export async function runPlannedRow(model: NotebookModel, plan: RowPlan, opts: RunOptions = {}, cache: ProofCache = new Map()): Promise<CheckRow> {
-  return byInduction(model.checks[plan.check]) ? runInductionRow(model, plan, opts, cache) : runRow(model, plan, opts)
+export async function runPlannedRow(model: NotebookModel, plan: RowPlan, opts: RunOptions = {}, cache: ProofCache = new Map(), cutoffVerdicts: CutoffVerdicts = new Map()): Promise<CheckRow> {
+  return byInduction(model.checks[plan.check]) ? runInductionRow(model, plan, opts, cache) : runRow(model, plan, opts, cutoffVerdicts)
 }
 

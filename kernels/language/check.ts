@@ -99,7 +99,7 @@ function sizesOf(clause: SyntaxNode, ctx: BlockContext, properties: PropertyMode
   if (hi > MAX_PROCESSES) { ctx.error(clause, `${hi} processes is beyond what an exhaustive check can explore here (at most ${MAX_PROCESSES}); check fewer processes`); return null }
   const temporalProp = properties.find((x) => !isInvariant(x))
   if (hi > MAX_TEMPORAL_PROCESSES && temporalProp) {
-    ctx.error(clause, `property \`${temporalProp.name}\` is temporal (not \`always\` of a state condition), and temporal properties are checked on at most ${MAX_TEMPORAL_PROCESSES} processes (their fairness conditions fill a 32-bit mark); check it at N = ${MAX_TEMPORAL_PROCESSES} or fewer`)
+    ctx.error(clause, `property \`${temporalProp.name}\` is temporal (not \`always\` of a state condition), and temporal properties are checked on at most ${MAX_TEMPORAL_PROCESSES} processes (their fairness conditions must fit the temporal product's 31 marks); write \`at N = ${lo < MAX_TEMPORAL_PROCESSES ? `${lo}..` : ''}${MAX_TEMPORAL_PROCESSES}\` or fewer`)
     return null
   }
   let ok = true

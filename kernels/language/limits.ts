@@ -33,8 +33,9 @@ export const MAX_PROCESSES = 12
 
 /**
  * The largest instance for a temporal property (not of the form `always P`): the fairness
- * conditions of semantics.md, one per process, one per channel and one for `stable`, are bits of a
- * 32-bit mark on every edge, and n + n(n-1) + 1 <= 32 holds up to n = 5.
+ * conditions of semantics.md, one per process, one per channel and one for `stable`, share the
+ * temporal product's 31 marks with the automaton's acceptance sets; n + n(n-1) + 1 is 26 at n = 5
+ * and 37 at n = 6.
  */
 export const MAX_TEMPORAL_PROCESSES = 5
 

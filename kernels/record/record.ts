@@ -7,10 +7,12 @@
 import pkg from '../../package.json' with { type: 'json' }
 import type { BlockRef, NotebookModel } from '../language/model'
 import type { CheckRow, ErrorEntry, Report } from '../result'
+import { planDigest, planOf, shardIndices } from '../plan'
 import { sha256Hex } from './hash'
 
 /** The record format this kernel writes and reads. */
-export const RECORD_FORMAT = { name: 'twofold-record', version: 1 } as const
+// Version 2: the notebook text is embedded, the plan is stated, a shard lists its planned rows.
+export const RECORD_FORMAT = { name: 'twofold-record', version: 2 } as const
 
 /** The version of the kernel that made a record (package.json). */
 export const KERNEL_VERSION: string = pkg.version
@@ -18,14 +20,20 @@ export const KERNEL_VERSION: string = pkg.version
 /** A shard of the row plan: the rows whose plan index is congruent to `index - 1` modulo `count`. */
 export interface Shard { index: number; count: number }
 
+/** A shard as a record states it: which share, and the plan indices of the rows it must hold. */
+export interface RecordShard extends Shard { indices: number[] }
+
 /** Every option that affects results. `limits` restates each check's `limit` (null: none). */
 export interface RecordOptions {
   only: string | null
-  shard: Shard | null
+  shard: RecordShard | null
   /** The solver's name and version, when some row was proved by induction (induction.md). */
   solver?: string
   limits: (number | null)[]
 }
+
+/** The row plan a run followed (after `--only`, before `--shard`): its row count and digest (plan.ts). */
+export interface RecordPlan { rows: number; sha256: string }
 
 /**
  * The hash of one formal block. `name` is what the block defines: the protocol's name, the
@@ -41,6 +49,9 @@ export interface BlockHash {
 
 /** A verification record: the report fields (`notebook`, `errors`, `checks`) plus provenance. */
 export interface VerificationRecord extends Report {
+  /** The notebook's path (information only: replay never opens it), hash, and whole text. */
+  notebook: { path: string; sha256: string; text: string }
+  plan: RecordPlan
   format: { name: 'twofold-record'; version: number }
   kernel: { name: 'twofold'; version: string }
   options: RecordOptions
@@ -60,7 +71,8 @@ export interface BuildOptions {
 /**
  * Builds the record of `report`, which must be the run of `text` (whose typed model is `model`)
  * under `options`. The rows are ordered by plan index so that records of the same run are equal
- * whatever order the rows were finished in. Throws when the report names a different notebook hash.
+ * whatever order the rows were finished in. The record embeds `text`, so a reviewer needs nothing
+ * else, and states the plan (row count, digest; a shard also its planned indices). Throws when the report names a different notebook hash.
  */
 export async function buildRecord(
   report: Report,
@@ -75,13 +87,17 @@ export async function buildRecord(
   const errors: ErrorEntry[] = JSON.parse(JSON.stringify(report.errors))
   const checks: CheckRow[] = JSON.parse(JSON.stringify(report.checks))
   checks.sort((a, b) => a.row - b.row)
+  const only = options.only ?? null
+  const plan = await planDigest(planOf(model, only ?? undefined))
+  const shard = options.shard ?? null
   return {
     format: { ...RECORD_FORMAT },
     kernel: { name: 'twofold', version: KERNEL_VERSION },
-    notebook: { path: report.notebook.path, sha256 },
+    notebook: { path: report.notebook.path, sha256, text },
+    plan,
     options: {
-      only: options.only ?? null,
-      shard: options.shard ? { index: options.shard.index, count: options.shard.count } : null,
+      only,
+      shard: shard ? { index: shard.index, count: shard.count, indices: shardIndices(plan.rows, shard) } : null,
       limits: model.checks.map((check) => check.limit),
       ...solverOf(checks),
     },

@@ -2,10 +2,13 @@
 // Every field is compared except the times (each row's `seconds` and the record's `created`): a
 // check that explores the same states must find the same counts, verdicts and counterexamples.
 import type { CheckRow, Progress } from '../result'
-import { canonicalJson } from './canonical'
-import { isSha256Hex, sha256Hex } from './hash'
+import { canonicalJson, canonicalJsonPretty } from './canonical'
+import { shardIndices } from '../plan'
+import { RECORD_TYPE, typeFault } from './schema'
+import { StrictJsonError, lineColumn, parseStrictJson } from './strict-json'
+import { sha256Hex } from './hash'
 import type { RecordKernel } from './kernel'
-import { RECORD_FORMAT, buildRecord, type VerificationRecord } from './record'
+import { RECORD_FORMAT, buildRecord, hashBlocks, type BlockHash, type VerificationRecord } from './record'
 
 /** A record that cannot be read: malformed, truncated, or of a format this kernel does not know. */
 export class RecordError extends Error {
@@ -14,59 +17,54 @@ export class RecordError extends Error {
 
 /**
  * Parses and validates the text of a record file. Throws a `RecordError` with a one-line message
- * (where the text breaks off, which field is missing or of the wrong type) when it is not a record.
+ * when it is not a record a reader can trust: not JSON (where it breaks off), a duplicate key, a
+ * field of the wrong type, rows out of plan order, an embedded notebook that does not match its
+ * hash, or text that is not byte for byte the canonical form (naming the first difference).
  */
-export function parseRecord(text: string): VerificationRecord {
+export async function parseRecord(text: string): Promise<VerificationRecord> {
+  if (text.trim() === '') throw new RecordError('the file is empty')
   let value: unknown
   try {
-    value = JSON.parse(text)
+    value = parseStrictJson(text)
   } catch (e) {
-    const detail = (e as Error).message.split('\n')[0]
-    throw new RecordError(text.trim() === '' ? 'the file is empty' : `not valid JSON (truncated or damaged): ${detail}`)
+    if (!(e instanceof StrictJsonError)) throw e
+    throw new RecordError(/duplicate key/.test(e.message) ? `not a trustworthy record: ${e.message}` : `not valid JSON (truncated or damaged): ${e.message}`)
   }
-  validateRecord(value)
-  return value
+  const format = (value as { format?: { name?: unknown; version?: unknown } } | null)?.format
+  if (format && format.name === RECORD_FORMAT.name && format.version !== RECORD_FORMAT.version)
+    throw new RecordError(`record format version ${JSON.stringify(format.version)} is not one this kernel reads (it reads ${RECORD_FORMAT.version})`)
+  const fault = typeFault(value, RECORD_TYPE)
+  if (fault) throw new RecordError(`not a twofold record: ${fault}`)
+  const record = value as VerificationRecord
+  checkPlanOrder(record)
+  if ((await sha256Hex(record.notebook.text)) !== record.notebook.sha256)
+    throw new RecordError('not a trustworthy record: notebook.text does not hash to notebook.sha256 (the embedded notebook or its hash was edited)')
+  const canonical = canonicalJsonPretty(record) + '\n'
+  if (canonical !== text) {
+    let i = 0
+    while (i < text.length && text[i] === canonical[i]) i++
+    const { line, column } = lineColumn(text, i)
+    const expected = i < canonical.length ? JSON.stringify(canonical.slice(i, i + 12)) : 'the end of the file'
+    throw new RecordError(`not in canonical form (sorted keys, two-space indentation, one final newline): first difference at line ${line}, column ${column}, where ${expected} belongs; records are compared byte for byte, so write them only with twofold check --record or merge`)
+  }
+  return record
 }
 
-function validateRecord(value: unknown): asserts value is VerificationRecord {
-  const fail = (path: string, expected: string): never => {
-    throw new RecordError(`not a twofold record: ${path} should be ${expected}`)
+/** Rows in strictly increasing plan order, within the plan, and a shard's list equal to the rows its share selects. */
+function checkPlanOrder(record: VerificationRecord): void {
+  const { rows } = record.plan
+  const shard = record.options.shard
+  if (shard) {
+    if (shard.count < 1 || shard.index < 1 || shard.index > shard.count) throw new RecordError('not a twofold record: options.shard should have 1 <= index <= count')
+    const expected = shardIndices(rows, shard)
+    if (canonicalJson(expected) !== canonicalJson(shard.indices))
+      throw new RecordError(`not a trustworthy record: options.shard.indices should list the plan rows r < ${rows} with r mod ${shard.count} = ${shard.index - 1}`)
   }
-  const isObject = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v)
-  if (!isObject(value)) fail('the document', 'a JSON object')
-  const r = value as Record<string, unknown>
-  if (!isObject(r.format)) fail('format', `{"name": "${RECORD_FORMAT.name}", "version": ${RECORD_FORMAT.version}}`)
-  const format = r.format as Record<string, unknown>
-  if (format.name !== RECORD_FORMAT.name) fail('format.name', `"${RECORD_FORMAT.name}"`)
-  if (format.version !== RECORD_FORMAT.version)
-    throw new RecordError(`record format version ${JSON.stringify(format.version)} is not one this kernel reads (it reads ${RECORD_FORMAT.version})`)
-  if (!isObject(r.kernel) || typeof r.kernel.version !== 'string') fail('kernel.version', 'a string')
-  if (!isObject(r.notebook) || typeof r.notebook.path !== 'string') fail('notebook.path', 'a string')
-  if (!isSha256Hex((r.notebook as Record<string, unknown>).sha256)) fail('notebook.sha256', '64 lowercase hex digits')
-  if (!isObject(r.options)) fail('options', 'an object')
-  const options = r.options as Record<string, unknown>
-  if (options.only !== null && typeof options.only !== 'string') fail('options.only', 'a string or null')
-  if (options.shard !== null) {
-    const s = options.shard as Record<string, unknown> | undefined
-    if (!isObject(s) || !Number.isInteger(s.index) || !Number.isInteger(s.count) || (s.index as number) < 1 || (s.index as number) > (s.count as number))
-      fail('options.shard', 'null or {"index": I, "count": N} with 1 <= I <= N')
-  }
-  if (!Array.isArray(options.limits)) fail('options.limits', 'an array')
-  if (!Array.isArray(r.blocks)) fail('blocks', 'an array')
-  ;(r.blocks as unknown[]).forEach((b, i) => {
-    if (!isObject(b) || typeof b.kind !== 'string' || !Number.isInteger(b.line) || !isSha256Hex(b.sha256))
-      fail(`blocks[${i}]`, 'an object with kind, name, line and sha256')
+  record.checks.forEach((row, i) => {
+    if (row.row >= rows) throw new RecordError(`not a trustworthy record: checks[${i}].row is ${row.row}, outside the plan of ${rows} rows`)
+    if (i > 0 && row.row <= record.checks[i - 1].row)
+      throw new RecordError(`not a trustworthy record: checks[${i}] (row ${row.row}) comes after row ${record.checks[i - 1].row}; rows are in increasing plan order, each once`)
   })
-  if (!Array.isArray(r.errors)) fail('errors', 'an array')
-  if (!Array.isArray(r.checks)) fail('checks', 'an array')
-  ;(r.checks as unknown[]).forEach((c, i) => {
-    if (!isObject(c)) fail(`checks[${i}]`, 'an object')
-    const row = c as Record<string, unknown>
-    if (!Number.isInteger(row.row)) fail(`checks[${i}].row`, 'an integer')
-    if (typeof row.verdict !== 'string') fail(`checks[${i}].verdict`, 'a string')
-    if (typeof row.property !== 'string') fail(`checks[${i}].property`, 'a string')
-  })
-  if (typeof r.created !== 'string') fail('created', 'an ISO 8601 time')
 }
 
 /** One compared field whose value differs. `undefined` means the field is absent on that side. */
@@ -139,42 +137,88 @@ function isPlainObject(v: unknown): v is Record<string, unknown> {
   return typeof v === 'object' && v !== null && !Array.isArray(v)
 }
 
-/** One line per difference: `checks[3].verdict: record says holds, now violated`. */
-export function formatDifference(d: Difference): string {
-  return `${d.path}: record says ${show(d.recorded)}, now ${show(d.fresh)}`
+/** Longest value shown in a difference; longer ones are cut, with their full length said. */
+const SHOWN = 160
+
+/**
+ * One line per difference: `checks[3].verdict: record says holds, now violated`. When the two sides
+ * have different types, both are shown as JSON with their type (`record says "63" (string), now 63
+ * (number)`); a long value is cut with its full length; a block's field names the block.
+ */
+export function formatDifference(d: Difference, recorded?: VerificationRecord): string {
+  const typed = typeOf(d.recorded) !== typeOf(d.fresh) && d.recorded !== undefined && d.fresh !== undefined
+  const side = (v: unknown) => (typed ? `${show(v, true)} (${typeOf(v)})` : show(v, false))
+  return `${d.path}${blockLabel(d.path, recorded)}: record says ${side(d.recorded)}, now ${side(d.fresh)}`
 }
 
-function show(value: unknown): string {
+function typeOf(v: unknown): string {
+  if (v === null) return 'null'
+  if (Array.isArray(v)) return 'array'
+  return typeof v
+}
+
+/** ` (property block "steady, dark" at line 21)` for a path into `blocks[i]`, from the record's own entry. */
+function blockLabel(path: string, record: VerificationRecord | undefined): string {
+  const m = /^blocks\[(\d+)\]/.exec(path)
+  const block = m && record ? record.blocks[Number(m[1])] : undefined
+  return block ? ` (${describeBlock(block)})` : ''
+}
+
+/** `property block "steady, dark" at line 21`. */
+export function describeBlock(b: BlockHash): string {
+  return `${b.kind} block${b.name ? ` ${JSON.stringify(b.name)}` : ''} at line ${b.line}`
+}
+
+function show(value: unknown, quoted: boolean): string {
   if (value === undefined) return 'nothing'
-  if (typeof value === 'string') return value
+  if (typeof value === 'string') {
+    const cut = value.length > SHOWN ? value.slice(0, SHOWN) : value
+    const text = quoted || cut !== value ? JSON.stringify(cut) : cut
+    return cut === value ? text : `${text}... (${value.length} characters in all)`
+  }
   const text = canonicalJson(value)
-  return text.length > 120 ? text.slice(0, 117) + '...' : text
+  return text.length > SHOWN ? `${text.slice(0, SHOWN)}... (${text.length} characters in all)` : text
 }
 
 /** The outcome of a replay. */
 export type ReplayOutcome =
-  /** The notebook is not the one the record was made from: nothing was run. */
-  | { kind: 'notebook-changed'; recorded: string; actual: string }
+  /** The notebook is not the one the record was made from: nothing was run. `blocks` says which formal blocks changed. */
+  | { kind: 'notebook-changed'; recorded: string; actual: string; blocks: string[] }
   /** The checks ran again; `differences` is empty when every compared field matches. */
   | { kind: 'compared'; differences: Difference[]; fresh: VerificationRecord }
 
 /**
- * Replays `record` against the notebook `text`: checks the notebook hash, runs the record's checks
- * again with its options (under the record's notebook path, which is part of what is compared),
- * and compares. `onProgress` is passed to the run.
+ * Replays `record`: on `text` when given (a notebook the reviewer holds, which must hash as the
+ * record says), else on the notebook text the record embeds. Runs the record's checks again with
+ * its options (under the record's notebook path, which is information and never opened) and
+ * compares. `onProgress` is passed to the run.
  */
 export async function replayRecord(
   record: VerificationRecord,
-  text: string,
+  text: string | undefined,
   kernel: RecordKernel,
   onProgress?: (progress: Progress) => void,
 ): Promise<ReplayOutcome> {
-  const actual = await sha256Hex(text)
-  if (actual !== record.notebook.sha256) return { kind: 'notebook-changed', recorded: record.notebook.sha256, actual }
-  const model = await kernel.analyzeNotebook(text)
+  const notebook = text ?? record.notebook.text
+  const actual = await sha256Hex(notebook)
+  const model = await kernel.analyzeNotebook(notebook)
+  if (actual !== record.notebook.sha256) return { kind: 'notebook-changed', recorded: record.notebook.sha256, actual, blocks: changedBlocks(record.blocks, await hashBlocks(model)) }
   const only = record.options.only ?? undefined
-  const shard = record.options.shard ?? undefined
-  const report = await kernel.runNotebook(text, record.notebook.path, { only, shard, onProgress })
-  const fresh = await buildRecord(report, text, model, { only, shard })
+  const shard = record.options.shard ? { index: record.options.shard.index, count: record.options.shard.count } : undefined
+  const report = await kernel.runNotebook(notebook, record.notebook.path, { only, shard, onProgress })
+  const fresh = await buildRecord(report, notebook, model, { only, shard })
   return { kind: 'compared', differences: compareRecords(record, fresh), fresh }
+}
+
+/** Each formal block whose hash differs, or that one side lacks, described by kind, name and line. */
+function changedBlocks(recorded: BlockHash[], now: BlockHash[]): string[] {
+  const out: string[] = []
+  for (let i = 0; i < Math.max(recorded.length, now.length); i++) {
+    const r = recorded[i], n = now[i]
+    if (r && n && r.sha256 === n.sha256 && r.kind === n.kind) continue
+    if (r && n) out.push(`${describeBlock(r)} (now ${describeBlock(n)}): sha256 ${r.sha256.slice(0, 12)}... in the record, ${n.sha256.slice(0, 12)}... now`)
+    else if (r) out.push(`${describeBlock(r)} is gone`)
+    else out.push(`${describeBlock(n)} is new`)
+  }
+  return out
 }

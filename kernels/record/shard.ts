@@ -17,6 +17,8 @@ export function parseShard(text: string): Shard {
   if (!m) throw new ShardError(`--shard takes I/N (for example 2/3), not "${text}"`)
   const index = Number(m[1])
   const count = Number(m[2])
+  // Beyond 2^53 the digits are rounded, so 99999999999999999999/99999999999999999999 would name some other shard.
+  if (!Number.isSafeInteger(index) || !Number.isSafeInteger(count)) throw new ShardError(`--shard ${text}: I and N must be at most ${Number.MAX_SAFE_INTEGER}`)
   if (count < 1 || index < 1 || index > count) throw new ShardError(`--shard ${text}: I must be between 1 and N`)
   return { index, count }
 }
@@ -26,11 +28,17 @@ export function inShard(row: number, shard: Shard): boolean {
   return row % shard.count === shard.index - 1
 }
 
+function listRows(indices: number[]): string {
+  if (indices.length === 0) return 'no rows'
+  return indices.length <= 6 ? `rows ${indices.join(', ')}` : `rows ${indices.slice(0, 5).join(', ')}, ... (${indices.length} in all)`
+}
+
 /**
  * Joins the records of shards 1/N .. N/N of one run into the record of the whole run: rows sorted
  * by plan index, `options.shard` null, `created` the latest of the shards' times. Refuses, with a
- * message naming the culprit, records of different notebooks, kernels or options, a shard given
- * twice or missing, a record that is not a shard, and a row that is in the wrong shard or in two.
+ * message naming the culprit, records of different notebooks, kernels, options or plans, a shard
+ * given twice or missing, a record that is not a shard, and a shard whose rows are not exactly the
+ * rows its plan lists (a gap, a stray or a repeated row).
  * `names` labels the records in messages (file names); positions are used when omitted.
  */
 export function mergeRecords(records: VerificationRecord[], names?: string[]): VerificationRecord {
@@ -69,18 +77,23 @@ export function mergeRecords(records: VerificationRecord[], names?: string[]): V
   for (let index = 1; index <= count; index++) if (!byIndex.has(index)) missing.push(`${index}/${count}`)
   if (missing.length > 0) throw new ShardError(`shard${missing.length > 1 ? 's' : ''} ${missing.join(', ')} missing: the merge would have a gap`)
 
-  const owner = new Map<number, number>()
+  sameAsFirst((r) => r.plan, 'row plan (row count and digest)')
+  // Each shard must hold exactly the rows its plan lists: a gap, a stray or a repeat is named.
   const checks = records.flatMap((r, i) => {
     const shard = r.options.shard!
+    const planned = new Set(shard.indices)
+    const held = new Set<number>()
     for (const row of r.checks) {
-      if (!inShard(row.row, shard)) throw new ShardError(`${label(i)} holds row ${row.row}, which belongs to shard ${(row.row % count) + 1}/${count}, not ${shard.index}/${count}`)
-      const earlier = owner.get(row.row)
-      if (earlier !== undefined) throw new ShardError(`row ${row.row} appears twice (${label(earlier)} and ${label(i)}): shards overlap`)
-      owner.set(row.row, i)
+      if (held.has(row.row)) throw new ShardError(`${label(i)} holds row ${row.row} twice`)
+      if (!planned.has(row.row)) throw new ShardError(`${label(i)} holds row ${row.row}, which shard ${shard.index}/${count} does not plan (it plans ${listRows(shard.indices)}): a stray row`)
+      held.add(row.row)
     }
+    const gap = shard.indices.find((index) => !held.has(index))
+    if (gap !== undefined) throw new ShardError(`${label(i)} lacks row ${gap}, which shard ${shard.index}/${count} plans: the merge would have a gap`)
     return r.checks
   })
   checks.sort((a, b) => a.row - b.row)
+  if (checks.length !== first.plan.rows) throw new ShardError(`the shards hold ${checks.length} rows, but the plan has ${first.plan.rows}`)
   const created = records.map((r) => r.created).sort().at(-1)!
   const merged: VerificationRecord = {
     ...first,

@@ -4,6 +4,8 @@ import { canonicalJsonPretty } from '../../kernels/record/canonical'
 import type { RecordKernel } from '../../kernels/record/kernel'
 import { buildRecord } from '../../kernels/record/record'
 import { ShardError, parseShard, type Shard } from '../../kernels/record/shard'
+import { planOf } from '../../kernels/plan'
+import { OutputError, refuseInputAsOutput } from './atomic'
 import { REFUSED, checkExitCode } from './exit'
 import { CliFailure, readInput, writeOutput, type CliIo } from './io'
 import { progressLine } from './progress'
@@ -26,10 +28,22 @@ export async function runCheck(io: CliIo, loadKernel: () => Promise<RecordKernel
     if (e instanceof ShardError) throw new CliFailure(e.message, REFUSED)
     throw e
   }
+  if (flags.record !== undefined) {
+    try {
+      refuseInputAsOutput(io.cwd, flags.record, [path], 'record')
+    } catch (e) {
+      if (e instanceof OutputError) throw new CliFailure(e.message, REFUSED)
+      throw e
+    }
+  }
   const text = await readInput(io, path, 'notebook', REFUSED)
   const kernel = await loadKernel()
   const model = await kernel.analyzeNotebook(text)
   const hasErrors = model.diagnostics.some((d) => d.severity === 'error')
+  if (shard && !hasErrors) {
+    const rows = planOf(model, flags.only).rows
+    if (rows > 0 && shard.index > rows) throw new CliFailure(`--shard ${shard.index}/${shard.count} selects no row: the plan of ${path} has ${rows} row${rows === 1 ? '' : 's'}`, REFUSED)
+  }
   if (flags.only !== undefined && !hasErrors) {
     const named = model.checks.some(
       (check) => model.protocols[check.protocol]?.name === flags.only || check.properties.some((p) => p.name === flags.only),

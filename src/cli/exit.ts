@@ -17,7 +17,8 @@ export const INCONCLUSIVE = 3
 /** The exit code of `twofold check` for a report. */
 export function checkExitCode(report: Report): number {
   if (report.errors.length > 0) return REFUSED
-  if (report.checks.some((row) => row.verdict === 'violated')) return VIOLATED
+  // Sizes that disagree mean some instance is violated (the row's or the cutoff instance).
+  if (report.checks.some((row) => row.verdict === 'violated' || row.agreement === false)) return VIOLATED
   if (report.checks.some((row) => row.verdict === 'inconclusive' || row.verdict === 'error')) return INCONCLUSIVE
   return HOLDS
 }

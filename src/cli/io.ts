@@ -62,7 +62,7 @@ export async function writeOutput(io: CliIo, path: string, text: string, what: s
 export async function readRecordFile(io: CliIo, path: string): Promise<VerificationRecord> {
   const text = await readInput(io, path, 'record', 2)
   try {
-    return parseRecord(text)
+    return await parseRecord(text)
   } catch (e) {
     if (e instanceof RecordError) throw new CliFailure(`${path}: ${e.message}`, 2)
     throw e

@@ -51,11 +51,12 @@ export async function main(argv: string[], io: CliIo): Promise<number> {
     .command('replay')
     .description("re-run a record's checks and compare every field but times")
     .argument('<record>', 'the verification record (.json)')
-    .argument('[notebook]', 'the notebook; by default the one named in the record')
+    .argument('[notebook]', 'a notebook to compare with the record (its hash must match); by default the notebook the record embeds')
     .addHelpText(
       'after',
       '\nExit codes: 0 every compared field matches; 1 some field differs (each is printed); 2 the\n' +
-        "notebook's hash differs from the record's, or the record is malformed, truncated or unreadable.",
+        "notebook's hash differs from the record's, or the record is malformed, truncated, not canonical,\n" +
+        'has a duplicate key or a field of the wrong type. No path written inside a record is opened.',
     )
     .action(async (record: string, notebook: string | undefined) => {
       code = await runReplay(io, kernel, record, notebook)

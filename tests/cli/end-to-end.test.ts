@@ -7,6 +7,7 @@ import { readFileSync, readdirSync } from 'node:fs'
 import { join } from 'node:path'
 import { fileURLToPath } from 'node:url'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { canonicalJsonPretty } from '../../kernels/record/canonical'
 import { compareRecords, parseRecord } from '../../kernels/record/replay'
 import type { Report } from '../../kernels/result'
 import { twofold, workspace } from './harness'
@@ -133,15 +134,31 @@ describe('twofold --shard and merge', () => {
   it('merges --shard 1/3, 2/3, 3/3 into the unsharded record', async () => {
     await twofold(['check', 'sweep.md', '--record', 'all.json'], ws.dir)
     for (const i of [1, 2, 3]) await twofold(['check', 'sweep.md', '--shard', `${i}/3`, '--record', `part${i}.json`], ws.dir)
-    const parts = [1, 2, 3].map((i) => parseRecord(readFileSync(join(ws.dir, `part${i}.json`), 'utf8')))
+    const parts = await Promise.all([1, 2, 3].map((i) => parseRecord(readFileSync(join(ws.dir, `part${i}.json`), 'utf8'))))
     expect(parts.map((p) => p.checks.map((r) => r.row))).toEqual([[0, 3, 6], [1, 4, 7], [2, 5]])
     const merged = await twofold(['merge', 'part3.json', 'part1.json', 'part2.json'], ws.dir)
     expect(merged.code).toBe(0)
     // Oracle: the unsharded run's record; every field but times must agree.
-    const whole = parseRecord(readFileSync(join(ws.dir, 'all.json'), 'utf8'))
-    expect(compareRecords(whole, parseRecord(merged.stdout))).toEqual([])
+    const whole = await parseRecord(readFileSync(join(ws.dir, 'all.json'), 'utf8'))
+    expect(compareRecords(whole, await parseRecord(merged.stdout))).toEqual([])
     ws.write('merged.json', merged.stdout)
     expect((await twofold(['replay', 'merged.json'], ws.dir)).code).toBe(0)
+  })
+
+  it('merges the shards of notebooks/guide.md into the unsharded record, which replays clean', async () => {
+    const guide = join(repo, 'notebooks', 'guide.md')
+    expect((await twofold(['check', guide, '--record', 'guide-all.json'], ws.dir)).code).toBe(1)
+    for (const i of [1, 2, 3]) expect([0, 1]).toContain((await twofold(['check', guide, '--shard', `${i}/3`, '--record', `guide${i}.json`], ws.dir)).code)
+    const merged = await twofold(['merge', 'guide1.json', 'guide2.json', 'guide3.json'], ws.dir)
+    expect(merged.code).toBe(0)
+    // Oracle: the unsharded run. `patient at N = 2..3` puts G_2 and G_3 in different shards,
+    // so agreement must come from each row's own comparison with the cutoff instance.
+    const all = await parseRecord(readFileSync(join(ws.dir, 'guide-all.json'), 'utf8'))
+    const joined = await parseRecord(merged.stdout)
+    expect(compareRecords(all, joined)).toEqual([])
+    expect(joined.checks.filter((r) => r.agreement !== undefined).length).toBeGreaterThan(1)
+    ws.write('guide-merged.json', merged.stdout)
+    expect((await twofold(['replay', 'guide-merged.json'], ws.dir)).code).toBe(0)
   })
 })
 
@@ -163,11 +180,12 @@ describe('twofold check --record', () => {
 
   it('hashes the notebook and each formal block, with its kind, name and line', async () => {
     await twofold(['check', 'violated.md', '--record', 'provenance.json'], ws.dir)
-    const record = parseRecord(readFileSync(join(ws.dir, 'provenance.json'), 'utf8'))
+    const record = await parseRecord(readFileSync(join(ws.dir, 'provenance.json'), 'utf8'))
     expect(record.notebook.sha256).toBe(createHash('sha256').update(fixtures['violated.md']).digest('hex'))
     expect(record.blocks.map(({ kind, line, sha256 }) => ({ kind, line, sha256 }))).toEqual(fencedBlocks(fixtures['violated.md']))
     expect(record.blocks.map((b) => b.name)).toEqual(['lamps', 'steady, dark', 'lamps'])
     expect(record.options).toEqual({ only: null, shard: null, limits: [null] })
+    expect(record.notebook.text).toBe(fixtures['violated.md'])
   })
 })
 
@@ -191,7 +209,7 @@ describe('twofold replay', () => {
   it('exits 1 naming the field when a result was changed', async () => {
     const doctored = JSON.parse(recorded())
     doctored.checks[0].states += 1
-    ws.write('doctored.json', JSON.stringify(doctored))
+    ws.write('doctored.json', canonicalJsonPretty(doctored) + '\n')
     const ran = await twofold(['replay', 'doctored.json'], ws.dir)
     expect(ran.code).toBe(1)
     expect(ran.stdout).toContain(`checks[0].states: record says ${doctored.checks[0].states}, now ${doctored.checks[0].states - 1}`)
@@ -221,7 +239,7 @@ describe('records of the example notebooks', () => {
     expect(b.code).toBe(a.code)
     const read = (suffix: string) => parseRecord(readFileSync(join(ws.dir, `${name}.${suffix}.json`), 'utf8'))
     // Oracle: the first run's record; only `seconds` and `created` may differ.
-    expect(compareRecords(read('a'), read('b'))).toEqual([])
+    expect(compareRecords(await read('a'), await read('b'))).toEqual([])
     expect((await twofold(['replay', join(ws.dir, `${name}.a.json`)], ws.dir)).code).toBe(0)
   })
 })

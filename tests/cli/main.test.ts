@@ -1,10 +1,12 @@
 // The command line's plumbing, against a scripted kernel whose answers are fixed in advance: what
 // is printed where, exit codes for each kind of answer, records written and replayed, failures as
 // one line. The real kernel's verdicts are exercised in end-to-end.test.ts.
-import { readFileSync } from 'node:fs'
+import { createHash } from 'node:crypto'
+import { readFileSync, symlinkSync } from 'node:fs'
 import { join } from 'node:path'
 import { afterEach, beforeEach, describe, expect, it } from 'vitest'
 import type { RecordKernel } from '../../kernels/record/kernel'
+import { canonicalJsonPretty } from '../../kernels/record/canonical'
 import { parseRecord } from '../../kernels/record/replay'
 import type { Report, Verdict } from '../../kernels/result'
 import { harbourModel, harbourText, report, row } from '../record/synthetic'
@@ -77,11 +79,30 @@ describe('twofold check', () => {
   })
 
   it('writes a record with --record that names the options used', async () => {
-    const ran = await twofold(['check', 'harbour.md', '--record', 'out.json', '--only', 'calm', '--shard', '2/3'], ws.dir, { kernel })
+    const ran = await twofold(['check', 'harbour.md', '--record', 'out.json', '--only', 'idle', '--shard', '2/3'], ws.dir, { kernel })
     expect(ran.code).toBe(0)
-    const record = parseRecord(readFileSync(join(ws.dir, 'out.json'), 'utf8'))
-    expect(record.options).toEqual({ only: 'calm', shard: { index: 2, count: 3 }, limits: [null] })
-    expect(record.checks.map((c) => c.row)).toEqual([4, 7])
+    const record = await parseRecord(readFileSync(join(ws.dir, 'out.json'), 'utf8'))
+    // Oracle: `idle` has the 4 rows reach 1..4 (plan rows 0..3); shard 2/3 plans the rows r mod 3 = 1.
+    expect(record.options).toEqual({ only: 'idle', shard: { index: 2, count: 3, indices: [1] }, limits: [null] })
+    expect(record.plan.rows).toBe(4)
+    expect(record.checks.map((c) => c.row)).toEqual([1])
+  })
+
+  it('exits 2 for a shard that selects no row, or whose numbers cannot be held exactly', async () => {
+    const beyond = await twofold(['check', 'harbour.md', '--shard', '9/10'], ws.dir, { kernel })
+    expect(beyond).toEqual({ code: 2, stdout: '', stderr: 'twofold: --shard 9/10 selects no row: the plan of harbour.md has 8 rows\n' })
+    const huge = await twofold(['check', 'harbour.md', '--shard', '99999999999999999999/99999999999999999999'], ws.dir, { kernel })
+    expect([huge.code, huge.stdout]).toEqual([2, ''])
+    expect(huge.stderr).toMatch(/^twofold: --shard 99999999999999999999\/99999999999999999999: I and N must be at most/)
+  })
+
+  it('exits 2 and leaves the notebook alone when --record names the notebook, directly or through a link', async () => {
+    symlinkSync(join(ws.dir, 'harbour.md'), join(ws.dir, 'link.json'))
+    for (const out of ['harbour.md', './harbour.md', 'link.json']) {
+      const ran = await twofold(['check', 'harbour.md', '--record', out], ws.dir, { kernel })
+      expect([out, ran.code, ran.stderr]).toEqual([out, 2, `twofold: the record ${out} would overwrite the input harbour.md; choose another file for --record\n`])
+    }
+    expect(readFileSync(join(ws.dir, 'harbour.md'), 'utf8')).toBe(harbourText)
   })
 
   it('draws the progress line on stderr only when stderr is a terminal, and erases it', async () => {
@@ -159,25 +180,53 @@ describe('twofold replay', () => {
     await record()
     const ran = await twofold(['replay', 'r.json'], ws.dir, { kernel })
     expect(ran.code).toBe(0)
-    expect(ran.stdout).toBe('replayed 8 rows of harbour.md: every compared field matches the record\n')
+    expect(ran.stdout).toBe('replayed 8 rows of the notebook embedded in r.json: every compared field matches the record\n')
   })
 
   it('exits 1 naming each changed field', async () => {
     const doctored = JSON.parse(await record())
     doctored.checks[3].verdict = 'violated'
     doctored.checks[6].states = 4
-    ws.write('r.json', JSON.stringify(doctored))
+    ws.write('r.json', canonicalJsonPretty(doctored) + '\n')
     const ran = await twofold(['replay', 'r.json'], ws.dir, { kernel })
     expect(ran.code).toBe(1)
     expect(ran.stdout.split('\n').slice(1, 3)).toEqual(['checks[3].verdict: record says violated, now holds', 'checks[6].states: record says 4, now 16'])
   })
 
-  it('exits 2 when the notebook changed since the record', async () => {
+  it('exits 2 when the notebook given changed since the record, naming the block that changed', async () => {
     await record()
-    ws.write('harbour.md', harbourText + '\nOne more sentence of prose.\n')
-    const ran = await twofold(['replay', 'r.json'], ws.dir, { kernel })
+    ws.write('edited.md', harbourText + '\nOne more sentence of prose.\n')
+    const prose = await twofold(['replay', 'r.json', 'edited.md'], ws.dir, { kernel })
+    expect(prose.code).toBe(2)
+    expect(prose.stderr).toMatch(/^edited\.md: the notebook changed since the record was made \(notebook\.sha256: record says [0-9a-f]{64}, the notebook hashes to [0-9a-f]{64}; no formal block changed, only the text around them\); nothing was replayed\n$/)
+    // The scripted kernel reads the edited text's blocks from the model, so edit the model's block text.
+    const edited = { ...harbourModel, blocks: harbourModel.blocks.map((b, i) => (i === 1 ? { ...b, text: b.text + ' ' } : b)) }
+    const ran = await twofold(['replay', 'r.json', 'edited.md'], ws.dir, { kernel: scriptedKernel({ analyzeNotebook: () => edited }) })
     expect(ran.code).toBe(2)
-    expect(ran.stderr).toMatch(/^harbour\.md: the notebook changed since the record was made \(notebook\.sha256: record says [0-9a-f]{64}, the notebook hashes to [0-9a-f]{64}\); nothing was replayed\n$/)
+    expect(ran.stderr).toMatch(/; property block "idle, calm" at line 14 \(now property block "idle, calm" at line 14\): sha256 [0-9a-f]{12}\.\.\. in the record, [0-9a-f]{12}\.\.\. now\); nothing was replayed\n$/)
+  })
+
+  it('exits 1 naming the block of an edited block hash', async () => {
+    const doctored = JSON.parse(await record())
+    doctored.blocks[2].sha256 = '0'.repeat(64)
+    ws.write('r.json', canonicalJsonPretty(doctored) + '\n')
+    const ran = await twofold(['replay', 'r.json'], ws.dir, { kernel })
+    expect(ran.code).toBe(1)
+    expect(ran.stdout).toMatch(/^blocks\[2\]\.sha256 \(check block "cranes" at line 19\): record says 0{64}, now [0-9a-f]{64}$/m)
+  })
+
+  it('exits 2 for a record that is not canonical, has a duplicate key or a field of the wrong type', async () => {
+    const text = await record()
+    const cases = {
+      layout: JSON.stringify(JSON.parse(text)),
+      duplicate: text.replace('"verdict": "holds"\n', '"verdict": "holds", "verdict": "violated"\n'),
+      type: text.replace(/"seconds": [0-9.e-]+/, '"seconds": "yesterday"'),
+    }
+    for (const [name, bad] of Object.entries(cases)) {
+      ws.write('bad.json', bad)
+      const ran = await twofold(['replay', 'bad.json'], ws.dir, { kernel })
+      expect([name, ran.code, ran.stderr.trimEnd().split('\n').length]).toEqual([name, 2, 1])
+    }
   })
 
   it('exits 2 with one line for a truncated record', async () => {
@@ -194,11 +243,19 @@ describe('twofold replay', () => {
     expect(ran).toEqual({ code: 2, stdout: '', stderr: 'twofold: cannot read record nowhere.json: no such file\n' })
   })
 
-  it('finds the notebook beside the record when it is not under the working directory', async () => {
-    await record()
-    const parent = join(ws.dir, '..')
-    const ran = await twofold(['replay', join(ws.dir, 'r.json')], parent, { kernel })
-    expect(ran.code).toBe(0)
+  it('never opens the notebook path a record names, replaying the embedded text instead', async () => {
+    const doctored = JSON.parse(await record())
+    ws.write('private.txt', 'a secret that replay must not read')
+    doctored.notebook.path = join(ws.dir, 'private.txt')
+    ws.write('r.json', canonicalJsonPretty(doctored) + '\n')
+    const texts: string[] = []
+    const base = scriptedKernel()
+    const spy = scriptedKernel({ runNotebook: (text, path, options) => { texts.push(text); return base.runNotebook(text, path, options) } })
+    const ran = await twofold(['replay', 'r.json'], ws.dir, { kernel: spy })
+    // The path is information and compared like any field; the text run is the embedded one.
+    expect(texts).toEqual([harbourText])
+    expect(ran.stdout + ran.stderr).not.toContain('secret')
+    expect(ran.stdout + ran.stderr).not.toContain(createHash('sha256').update('a secret that replay must not read').digest('hex'))
   })
 
   it('replays against the notebook given on the command line', async () => {
@@ -214,8 +271,8 @@ describe('twofold merge', () => {
     await twofold(['check', 'harbour.md', '--record', 'all.json'], ws.dir, { kernel })
     const ran = await twofold(['merge', 's2.json', 's3.json', 's1.json'], ws.dir, { kernel })
     expect(ran.code).toBe(0)
-    const strip = (r: ReturnType<typeof parseRecord>) => ({ ...r, created: '', checks: r.checks.map((c) => ({ ...c, seconds: 0 })) })
-    expect(strip(parseRecord(ran.stdout))).toEqual(strip(parseRecord(readFileSync(join(ws.dir, 'all.json'), 'utf8'))))
+    const strip = (r: Awaited<ReturnType<typeof parseRecord>>) => ({ ...r, created: '', checks: r.checks.map((c) => ({ ...c, seconds: 0 })) })
+    expect(strip(await parseRecord(ran.stdout))).toEqual(strip(await parseRecord(readFileSync(join(ws.dir, 'all.json'), 'utf8'))))
     ws.write('merged.json', ran.stdout)
     expect((await twofold(['replay', 'merged.json'], ws.dir, { kernel })).code).toBe(0)
   })

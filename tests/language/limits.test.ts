@@ -105,9 +105,9 @@ describe('instance sizes (item 18)', () => {
     ])
   })
 
-  test('temporal properties stop at 5 processes, where their fairness marks fill 32 bits', () => {
+  test('temporal properties stop at 5 processes, where their fairness conditions fit the product marks', () => {
     expect(errors(nb('  state b: 0..3 = 0\n  step { b := 0 }', 'property calm = forall p: eventually p.b = 0', 'check depot: calm at N = 6'))).toEqual([
-      [16, 19, 'property `calm` is temporal (not `always` of a state condition), and temporal properties are checked on at most 5 processes (their fairness conditions fill a 32-bit mark); check it at N = 5 or fewer'],
+      [16, 19, 'property `calm` is temporal (not `always` of a state condition), and temporal properties are checked on at most 5 processes (their fairness conditions must fit the temporal product\'s 31 marks); write `at N = 5` or fewer'],
     ])
   })
 })

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import { ModelSetupError } from '../../kernels/model/errors'
-import { channelIndex, makeLayout } from '../../kernels/model/layout'
+import { bitsFor, channelIndex, makeLayout } from '../../kernels/model/layout'
 import { compileInstance } from '../../kernels/model/instance'
 import { protocolOf } from './fixtures'
 
@@ -17,6 +17,11 @@ const lighthouse = `protocol lighthouse {
 }`
 
 describe('layout', () => {
+  it('counts bits without 32-bit wrap-around (2^32 values need 32 bits, not 0)', () => {
+    // Exact powers of two, by definition: k bits hold 2^k values.
+    expect([1, 2, 3, 4, 2 ** 31, 2 ** 31 + 1, 2 ** 32, 2 ** 32 + 1, 2 ** 53].map(bitsFor)).toEqual([0, 1, 2, 2, 31, 32, 32, 33, 53])
+  })
+
   it('has n(n-1) channels for n processes', () => {
     const p = protocolOf(lighthouse)
     for (const n of [1, 2, 3, 4]) {

@@ -11,11 +11,17 @@ describe('buildRecord', () => {
   it('carries the report fields unchanged and adds the format', async () => {
     const r = report()
     const record = await buildRecord(r, harbourText, harbourModel, { created })
-    expect(record.format).toEqual({ name: 'twofold-record', version: 1 })
+    expect(record.format).toEqual({ name: 'twofold-record', version: 2 })
     expect(RECORD_FORMAT.name).toBe('twofold-record')
     expect(record.checks).toEqual(r.checks)
     expect(record.errors).toEqual([])
     expect(record.notebook.path).toBe('notebooks/harbour.md')
+  })
+
+  it('embeds the notebook text, so the record is all a reviewer needs', async () => {
+    const record = await buildRecord(report(), harbourText, harbourModel, { created })
+    expect(record.notebook.text).toBe(harbourText)
+    expect(nodeSha(record.notebook.text)).toBe(record.notebook.sha256)
   })
 
   it('hashes the notebook text with SHA-256', async () => {
@@ -37,9 +43,13 @@ describe('buildRecord', () => {
       shard: { index: 2, count: 3 },
       created,
     })
-    expect(record.options).toEqual({ only: 'idle', shard: { index: 2, count: 3 }, limits: [null] })
+    // Oracle: `only: idle` keeps the 4 rows of idle (reach 1..4); shard 2/3 of rows 0..3 is rows 1 (r mod 3 = 1).
+    expect(record.options).toEqual({ only: 'idle', shard: { index: 2, count: 3, indices: [1] }, limits: [null] })
+    expect(record.plan.rows).toBe(4)
     const plain = await buildRecord(report(), harbourText, harbourModel, { created })
     expect(plain.options).toEqual({ only: null, shard: null, limits: [null] })
+    expect(plain.plan.rows).toBe(8)
+    expect(plain.plan.sha256).not.toBe(record.plan.sha256)
   })
 
   it('writes the creation time in ISO 8601 UTC', async () => {

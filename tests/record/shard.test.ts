@@ -3,7 +3,7 @@ import { canonicalJson } from '../../kernels/record/canonical'
 import { buildRecord, type VerificationRecord } from '../../kernels/record/record'
 import { compareRecords } from '../../kernels/record/replay'
 import { ShardError, inShard, mergeRecords, parseShard } from '../../kernels/record/shard'
-import { harbourModel, harbourText, report } from './synthetic'
+import { harbourModel, harbourText, report, row } from './synthetic'
 
 const shardRecord = (index: number, count: number, when = `2026-03-01T08:0${index}:00Z`) =>
   buildRecord(report((i) => inShard(i, { index, count })), harbourText, harbourModel, { shard: { index, count }, created: new Date(when) })
@@ -19,6 +19,8 @@ describe('parseShard', () => {
     expect(() => parseShard('4/3')).toThrow(/between 1 and N/)
     expect(() => parseShard('two')).toThrow(/I\/N/)
     expect(() => parseShard('1/0')).toThrow(ShardError)
+    // Oracle: 10^20 > 2^53, so the digits cannot be held exactly.
+    expect(() => parseShard('99999999999999999999/99999999999999999999')).toThrow(/at most 9007199254740991/)
   })
 })
 
@@ -82,7 +84,24 @@ describe('mergeRecords', () => {
   it('refuses a row filed under the wrong shard', async () => {
     const wrong = await buildRecord(report((i) => i === 0 || i === 1), harbourText, harbourModel, { shard: { index: 1, count: 2 } })
     const second = await shardRecord(2, 2)
-    expect(() => mergeRecords([wrong, second], ['a.json', 'b.json'])).toThrow('a.json holds row 1, which belongs to shard 2/2, not 1/2')
+    expect(() => mergeRecords([wrong, second], ['a.json', 'b.json'])).toThrow('a.json holds row 1, which shard 1/2 does not plan (it plans rows 0, 2, 4, 6): a stray row')
+  })
+
+  it('refuses a shard with a row removed, added or repeated, naming the row', async () => {
+    const [a, b] = [await shardRecord(1, 2), await shardRecord(2, 2)]
+    const names = ['a.json', 'b.json']
+    const removed = { ...b, checks: b.checks.filter((r) => r.row !== 5) }
+    expect(() => mergeRecords([a, removed], names)).toThrow('b.json lacks row 5, which shard 2/2 plans: the merge would have a gap')
+    const added = { ...b, checks: [...b.checks, row(9)] }
+    expect(() => mergeRecords([a, added], names)).toThrow('b.json holds row 9, which shard 2/2 does not plan (it plans rows 1, 3, 5, 7): a stray row')
+    const repeated = { ...b, checks: [...b.checks, row(3)] }
+    expect(() => mergeRecords([a, repeated], names)).toThrow('b.json holds row 3 twice')
+  })
+
+  it('refuses shards of different plans', async () => {
+    const [a, b] = [await shardRecord(1, 2), await shardRecord(2, 2)]
+    const other = { ...b, plan: { ...b.plan, sha256: '0'.repeat(64) } }
+    expect(() => mergeRecords([a, other], ['a.json', 'b.json'])).toThrow('b.json differs from a.json in row plan (row count and digest): they are not shards of one run')
   })
 
   it('gives a record equal in all but times to the unsharded one for any shard count', async () => {

@@ -37,16 +37,16 @@ const protocolBlock = block('protocol', 'protocol cranes', '\n}', 4)
 const propertyBlock = block('property', 'property idle', 'p.busy\n', 14)
 const checkBlock = block('check', 'check cranes', '1..4', 19)
 
-/** A typed model with just the parts records read (blocks, names, limits); the rest is not consulted. */
+/** A typed model with just the parts records read (blocks, names, limits, the plan); the rest is not consulted. */
 export const harbourModel = {
   title: null,
   blocks: [protocolBlock, propertyBlock, checkBlock],
-  protocols: [{ name: 'cranes', block: protocolBlock }],
+  protocols: [{ name: 'cranes', block: protocolBlock, consts: [{ name: 'reach', value: 2 }] }],
   properties: [
     { name: 'idle', block: propertyBlock },
     { name: 'calm', block: propertyBlock },
   ],
-  checks: [{ protocol: 0, block: checkBlock, limit: null, properties: [{ name: 'idle' }, { name: 'calm' }] }],
+  checks: [{ protocol: 0, block: checkBlock, limit: null, sizes: null, sweep: [{ constIndex: 0, values: [1, 2, 3, 4] }], properties: [{ name: 'idle' }, { name: 'calm' }] }],
   diagnostics: [],
 } as unknown as NotebookModel
 

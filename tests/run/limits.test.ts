@@ -131,6 +131,17 @@ describe('a dozen processes (item 18)', () => {
   })
 })
 
+describe('temporal rows beyond 5 processes (item 1, temporal rows)', () => {
+  test('a row built directly for 6 processes is a setup error naming the property, not a run on aliased marks', () => {
+    const model = analyzeNotebook(nb('  state b: 0..1 = 0\n  step { b := 1 }', 'property up = forall p: eventually p.b = 1', 'check ferry: up at N = 5'))
+    const [plan] = planRows(model)
+    const row = runRow(model, { ...plan, processes: 6 })
+    expect(row.verdict).toBe('error')
+    expect(row.note).toBe('temporal properties are checked on at most 5 processes (their fairness conditions must fit the temporal product\'s 31 marks), not 6 (line 12, column 10)')
+    expect(runRow(model, plan).verdict).toBe('holds')
+  })
+})
+
 describe('division by zero in a property (item 21)', () => {
   const body = '  state b: 0..2 = 0\n  step { b := min(b + 1, 2) }'
   test('an invariant dividing by a value that reaches zero is a model error at the operator, as in the reference', () => {

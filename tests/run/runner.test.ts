@@ -2,7 +2,8 @@
 // with agreement, limits, model errors, stopping, and the shape of each row.
 import { describe, expect, test } from 'vitest'
 import { analyzeNotebook } from '../../kernels/language/analyze'
-import { markAgreement, planRows, runNotebook, runRow } from '../../kernels/run'
+import { planRows } from '../../kernels/plan'
+import { runNotebook, runRow } from '../../kernels/run'
 
 const lamps = (step: string, extra: string) => `
 \`\`\`protocol
@@ -51,14 +52,29 @@ describe('check semantics', () => {
 
   test('with sizes where the cutoff applies, the rows say the sizes agree', () => {
     const rows = run(lamps('    broadcast blink', '```property\nproperty capped = forall p, q: always p.seen[q] <= cap\n```\n```check\ncheck lamps: capped at N = 2..3\n```'))
-    expect(rows.map((r) => [r.processes, r.verdict, r.agreement])).toEqual([[2, 'holds', undefined], [3, 'holds', undefined]])
-    expect(markAgreement(rows).map((r) => r.agreement)).toEqual([true, true])
+    expect(rows.map((r) => [r.processes, r.verdict, r.agreement])).toEqual([[2, 'holds', true], [3, 'holds', true]])
   })
 
-  test('a disagreement between sizes where the cutoff applies is flagged as a soundness alarm', () => {
-    const rows = run(lamps('    broadcast blink', '```property\nproperty capped = forall p, q: always p.seen[q] <= cap\n```\n```check\ncheck lamps: capped at N = 2..3\n```'))
-    rows[1].verdict = 'violated' // as if the kernel had a bug at N = 3
-    expect(markAgreement(rows).map((r) => r.agreement)).toEqual([false, false])
+  test('a single explicit size above the cutoff is compared with the cutoff instance, alone or in a shard', async () => {
+    const text = lamps('    broadcast blink', '```property\nproperty capped = forall p, q: always p.seen[q] <= cap\n```\n```check\ncheck lamps: capped at N = 3\n```')
+    expect(run(text).map((r) => [r.processes, r.agreement])).toEqual([[3, true]])
+    const wide = text.replace('at N = 3', 'at N = 2..4')
+    const whole = (await runNotebook(wide, 'w.md')).checks.map((r) => r.agreement)
+    const sharded = (await Promise.all([1, 2, 3].map((index) => runNotebook(wide, 'w.md', { shard: { index, count: 3 } })))).flatMap((r) => r.checks)
+    expect(whole).toEqual([true, true, true])
+    // Oracle: the unsharded run; each shard holds one row, so agreement cannot come from the other rows.
+    expect(sharded.sort((a, b) => a.row - b.row).map((r) => r.agreement)).toEqual(whole)
+  })
+
+  test('a disagreement with the cutoff instance is said plainly and never hidden', () => {
+    const text = lamps('    broadcast blink', '```property\nproperty capped = forall p, q: always p.seen[q] <= cap\n```\n```check\ncheck lamps: capped at N = 3\n```')
+    const model = analyzeNotebook(text)
+    const [plan] = planRows(model)
+    // As if the kernel had a bug at N = 2: the cutoff instance's verdict is injected as violated.
+    const row = runRow(model, plan, {}, new Map([[`0|0|${plan.constants.join(',')}`, 'violated']]))
+    expect(row.verdict).toBe('holds')
+    expect(row.agreement).toBe(false)
+    expect(row.note).toMatch(/^sizes disagree: G_3 holds but the cutoff instance G_2 is violated; the cutoff claim is contradicted; please report this notebook/)
   })
 
   test('with sizes where the cutoff does not apply, every assignment of distinct processes is checked', () => {

@@ -42,7 +42,7 @@ export function renderReport(report: Report): string {
     oneProtocol ? row.property : `${row.protocol}/${row.property}`,
     instanceLabel(row),
     constantsLabel(row.constants),
-    row.verdict + (row.agreement === false ? ' (sizes disagree)' : ''),
+    row.verdict + (row.method === 'induction' ? ' by induction' : '') + (row.agreement === false ? ' (sizes disagree)' : ''),
     // A row with no instance (the cutoff was refused and no sizes were given) explored nothing.
     row.processes < 1 ? '-' : count(row.states, row.complete),
     row.processes < 1 ? '-' : count(row.transitions, row.complete),

@@ -1,6 +1,7 @@
 // `npm run bench [-- --json]`: speed and memory of the kernel, each measured against an
 // in-process baseline in the same run (so that the numbers compare on any machine).
 import { exploreCases, hashBaseline } from './explore'
+import { inductionCases } from './induction'
 import { parseCases } from './parse'
 import { productCases } from './product'
 import { reductionCases } from './reduction'
@@ -15,6 +16,7 @@ const cases = exploreCases()
 const product = productCases(root)
 const temporal = temporalCases()
 const reduction = reductionCases()
+const induction = await inductionCases(60)
 
 const transitionsPerSecond = (c: { transitions: number; seconds: number }) => c.transitions / c.seconds
 const best = Math.max(...cases.map(transitionsPerSecond))
@@ -26,6 +28,7 @@ const report = {
   product,
   temporal,
   reduction,
+  induction,
 }
 
 if (json) {
@@ -54,4 +57,7 @@ if (json) {
   console.log('Parse and check')
   console.log(`  ${pc.name}: ${pc.lines} lines in ${pc.seconds.toFixed(3)} s = ${f(pc.linesPerSecond)} lines/s (${pc.diagnostics} diagnostics)`)
   console.log(`  baseline: ${parse.baseline.name}: ${f(parse.baseline.linesPerSecond)} lines/s`)
+  console.log('Induction against exploration (lanterns, two-index invariant calm and fresh, 60 s per size)')
+  for (const r of induction.rows) console.log(`  ${r.engine.padEnd(12)} N=${r.processes}  ${r.outcome.padEnd(12)} ${r.seconds.toFixed(2)} s${r.states !== undefined ? `  ${f(r.states)} states` : ''}`)
+  console.log(`  largest N within 60 s: induction ${induction.largestInduction}, exploration ${induction.largestExploration} (goal: induction >= 6 where exploration stops at 3)`)
 }

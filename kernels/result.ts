@@ -26,8 +26,16 @@ export interface TickRecord {
 /** The values every process starts with in a counterexample (needed where `any` initial values branch). */
 export interface InitialProcess { process: number; values: Record<string, ShownValue> }
 
+/** A state of a counterexample to induction, whole: processes, their values and what is in flight. */
+export interface InductionState {
+  processes: { process: number; alive: boolean; idle?: number; values: Record<string, ShownValue> }[]
+  /** Messages in flight, `age` omitted under asynchronous. */
+  inFlight: { from: number; to: number; message: string; age?: number }[]
+  stable?: boolean
+}
+
 export interface Counterexample {
-  kind: 'trace' | 'lasso' | 'model-error'
+  kind: 'trace' | 'lasso' | 'model-error' | 'induction'
   message: string
   initial: InitialProcess[]
   ticks: TickRecord[]
@@ -35,6 +43,12 @@ export interface Counterexample {
   loopStart?: number
   /** The property's atoms, and for each state (initial state first, then after each tick) which hold. */
   atoms?: { text: string; values: boolean[] }[]
+  /**
+   * induction only: the state s (it satisfies the invariant; `initial` shows its values), the
+   * state s' after the one tick in `ticks` (null when that tick makes a model error), and the
+   * conjunct that fails in s' with its processes.
+   */
+  induction?: { before: InductionState; after: InductionState | null; property: string | null; conjunct: string | null; assignment: Record<string, number> }
 }
 
 /** One failed class-check rule (cutoff.md): its number and its short name, such as `no-aggregate`. */
@@ -75,8 +89,12 @@ export interface CheckRow {
   counterexample: Counterexample | null
   /** The processes the property's variables were bound to, e.g. {p: 1, q: 2}. */
   assignment: Record<string, number>
-  /** How the property was checked: 'invariant' (reachability) or 'ltl' (automaton product). */
-  method?: 'invariant' | 'ltl'
+  /** How the row was decided (records.md): by exploring the instance, or by induction (induction.md). */
+  method?: 'exploration' | 'induction'
+  /** exploration only: 'invariant' (reachability) or 'ltl' (automaton product). */
+  search?: 'invariant' | 'ltl'
+  /** induction only: the solver's name and version. */
+  solver?: string
   /** Symmetry-reduced state count, when the check used reduction. */
   reducedStates?: number
   /** Why the verdict is inconclusive or error, in one sentence. */

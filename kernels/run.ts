@@ -21,6 +21,7 @@ import { canonicalizer, orbitTotal } from './symmetry/canon'
 import { decideCutoff } from './symmetry/cutoff'
 import { RULE_NAMES } from './symmetry/rules'
 import { sha256Hex } from './record/hash'
+import { byInduction, runInductionRow, type ProofCache } from './induction/row'
 import type { CheckRow, CutoffInfo, Report, Verdict } from './result'
 
 /** States explored before a check without `within K states` gives up as inconclusive (memory guard). */
@@ -166,7 +167,9 @@ function runPlainRow(model: NotebookModel, plan: RowPlan, opts: RunOptions): Che
     return finish()
   }
   if (check.method === 'induction') {
-    row.note = 'proof by induction (`by induction`) is not available in this build, so nothing was proved; check the property without `by induction` to explore it'
+    // Proofs are asynchronous (the solver loads on first use): runPlannedRow routes them.
+    row.verdict = 'error'
+    row.note = 'a check by induction is run by runPlannedRow, not runRow'
     return finish()
   }
   const n = row.processes
@@ -218,7 +221,8 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
     const fixed = chosen[0]
     const rr = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: progress, invariant, canonicalize: canonicalizer(inst, fixed) })
     if (rr.outcome === 'ok') {
-      row.method = 'invariant'
+      row.method = 'exploration'
+      row.search = 'invariant'
       row.assignment = named(prop, fixed)
       row.reducedStates = rr.states
       row.states = orbitTotal(inst, rr.store.data, rr.states, fixed)
@@ -239,7 +243,8 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   const r = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: progress, invariant, edges: recorder })
   row.states = r.states
   row.transitions = r.transitions
-  row.method = inv ? 'invariant' : 'ltl'
+  row.method = 'exploration'
+  row.search = inv ? 'invariant' : 'ltl'
   row.assignment = named(prop, chosen[0] ?? [])
   const data = r.store.data
   if (r.outcome === 'model-error' && r.error && r.trace) {
@@ -335,8 +340,18 @@ export async function runNotebook(text: string, path: string, opts: RunOptions =
   const errors = model.diagnostics.filter((d) => d.severity === 'error').map((d) => ({ line: d.line, column: d.column, message: d.message }))
   if (errors.length > 0) return { notebook: { path, sha256 }, errors, checks: [] }
   const cutoffVerdicts: CutoffVerdicts = new Map()
+  const cache: ProofCache = new Map()
   const checks: CheckRow[] = []
-  for (const plan of planOf(model, opts.only).select(opts.shard)) checks.push(runRow(model, plan, opts, cutoffVerdicts))
+  for (const plan of planOf(model, opts.only).select(opts.shard)) checks.push(await runPlannedRow(model, plan, opts, cache, cutoffVerdicts))
   return { notebook: { path, sha256 }, errors, checks }
+}
+
+/**
+ * Runs one planned row by its check's method: `by induction` rows go to the induction engine
+ * (asynchronous: the solver is loaded on first use), the others to `runRow`. Rows of one check,
+ * size and setting share one joint proof through `cache`.
+ */
+export async function runPlannedRow(model: NotebookModel, plan: RowPlan, opts: RunOptions = {}, cache: ProofCache = new Map(), cutoffVerdicts: CutoffVerdicts = new Map()): Promise<CheckRow> {
+  return byInduction(model.checks[plan.check]) ? runInductionRow(model, plan, opts, cache) : runRow(model, plan, opts, cutoffVerdicts)
 }
 

@@ -27,6 +27,8 @@ export interface RecordShard extends Shard { indices: number[] }
 export interface RecordOptions {
   only: string | null
   shard: RecordShard | null
+  /** The solver's name and version, when some row was proved by induction (induction.md). */
+  solver?: string
   limits: (number | null)[]
 }
 
@@ -97,12 +99,18 @@ export async function buildRecord(
       only,
       shard: shard ? { index: shard.index, count: shard.count, indices: shardIndices(plan.rows, shard) } : null,
       limits: model.checks.map((check) => check.limit),
+      ...solverOf(checks),
     },
     blocks: await hashBlocks(model),
     errors,
     checks,
     created: (options.created ?? new Date()).toISOString(),
   }
+}
+
+function solverOf(checks: CheckRow[]): { solver?: string } {
+  const row = checks.find((r) => r.method === 'induction' && r.solver)
+  return row ? { solver: row.solver } : {}
 }
 
 /** The SHA-256 of each formal block's text, in notebook order, with its kind, name and line. */

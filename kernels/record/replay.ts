@@ -97,13 +97,24 @@ export function compareRecords(recorded: VerificationRecord, fresh: Verification
     const path = `checks[${i}]`
     const match = freshByRow.get(row.row)
     if (!match || seen.has(row.row)) out.push({ path, recorded: row, fresh: undefined })
-    else diff(row, match, path, out)
+    else diff(comparable(row), comparable(match), path, out)
     seen.add(row.row)
   })
   // A row the record lacks has no position in it: name it by its plan index instead.
   for (const row of freshChecks)
     if (!recordedChecks.some((r) => r.row === row.row)) out.push({ path: `checks[row ${row.row}]`, recorded: undefined, fresh: row })
   return out
+}
+
+/**
+ * A proof by induction is compared on its verdict, the failing conjunct and whether a
+ * counterexample exists, not on the particular state the solver picked (induction.md).
+ */
+function comparable(row: CheckRow): CheckRow {
+  const cx = row.counterexample
+  if (row.method !== 'induction' || !cx || cx.kind !== 'induction') return row
+  const kept = { kind: cx.kind, property: cx.induction?.property ?? null, conjunct: cx.induction?.conjunct ?? null }
+  return { ...row, counterexample: kept as unknown as CheckRow['counterexample'] }
 }
 
 function diff(a: unknown, b: unknown, path: string, out: Difference[]): void {

@@ -100,10 +100,11 @@ export function counterexampleSvg(cx: Counterexample, processes: number, opts: D
   for (let i = 0; i < ticks; i++) {
     parts.push(html`<rect class="tick-band" data-tick="${i}" x="0" y="${tickY(i) - ROW / 2}" width="${width}" height="${ROW}"><title>tick ${cx.ticks[i].tick}</title></rect>`)
   }
+  // A counterexample to induction starts from a state s that need not be reachable.
   // Labels sit on the row of the dots they name: "start" on the initial state, "tick t" on the tick.
-  parts.push(html`<text class="state-label" x="${LEFT - 10}" y="${stateY(0) + 4}" text-anchor="end">start</text>`)
+  parts.push(html`<text class="state-label" x="${LEFT - 10}" y="${stateY(0) + 4}" text-anchor="end">${cx.kind === 'induction' ? 's' : 'start'}</text>`)
   for (let i = 0; i < ticks; i++) {
-    parts.push(html`<text class="state-label" x="${LEFT - 10}" y="${tickY(i) + 4}" text-anchor="end">tick ${cx.ticks[i].tick}</text>`)
+    parts.push(html`<text class="state-label" x="${LEFT - 10}" y="${tickY(i) + 4}" text-anchor="end">${cx.kind === 'induction' ? "tick to s'" : `tick ${cx.ticks[i].tick}`}</text>`)
   }
   if (cx.loopStart !== undefined && cx.loopStart >= 0 && cx.loopStart <= ticks) {
     const y1 = stateY(cx.loopStart)
@@ -216,6 +217,13 @@ export function changesTable(cx: Counterexample): string {
     const vals = Object.entries(p.values).map(([k, v]) => `${k} = ${shown(v)}`).join(', ')
     return html`<div><span class="who">process ${p.process}</span> ${vals}</div>`
   })
+  const before = cx.induction?.before
+  if (before) {
+    const dead = before.processes.filter((p) => !p.alive).map((p) => p.process)
+    if (dead.length) initial.push(html`<div>crashed: ${dead.join(', ')}</div>`)
+    const flight = before.inFlight.map((m) => `${m.message} ${m.from} to ${m.to}${m.age !== undefined ? ` (age ${m.age})` : ''}`)
+    initial.push(html`<div>in flight: ${flight.length ? flight.join(', ') : 'nothing'}</div>`)
+  }
   const rows = cx.ticks.map((t, i) => {
     const lines: Markup[] = []
     if (t.gst) lines.push(html`<div class="ev-stable">GST: the delay and idle bounds hold from here on</div>`)
@@ -229,5 +237,5 @@ export function changesTable(cx: Counterexample): string {
     const failing = cx.kind === 'model-error' && i === cx.ticks.length - 1
     return html`<tr data-tick="${i}"${failing ? raw(' class="failing"') : null}><th scope="row">${t.tick}</th><td>${loop}${lines.length ? lines : html`<span class="quiet">nothing happens</span>`}</td></tr>`
   })
-  return html`<table class="ticks"><caption>What happens, tick by tick</caption><thead><tr><th scope="col">tick</th><th scope="col">events and changes</th></tr></thead><tbody><tr class="initial"><th scope="row">start</th><td>${initial}</td></tr>${rows}</tbody></table>`.text
+  return html`<table class="ticks"><caption>What happens, tick by tick</caption><thead><tr><th scope="col">tick</th><th scope="col">events and changes</th></tr></thead><tbody><tr class="initial"><th scope="row">${cx.kind === 'induction' ? 's' : 'start'}</th><td>${initial}</td></tr>${rows}</tbody></table>`.text
 }

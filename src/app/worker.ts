@@ -2,7 +2,7 @@
 // values: the notebook text goes in (the worker keeps the model of the last text it read, so a run
 // does not ship the model back and forth), rows and diagnostics come out.
 import * as Comlink from 'comlink'
-import { analyzeNotebook, planRows, runRow, type NotebookModel, type RowPlan } from '../../kernels/api'
+import { analyzeNotebook, planRows, runPlannedRow, type NotebookModel, type RowPlan } from '../../kernels/api'
 import type { CheckRow, Progress } from '../../kernels/result'
 
 let lastText: string | null = null
@@ -31,8 +31,9 @@ export const kernelApi = {
    * Runs one planned row. `stop`, when given, is a shared flag: the page sets element 0 to 1 to
    * stop the row (it then comes back inconclusive), because a busy worker cannot read messages.
    */
-  run(text: string, plan: RowPlan, onProgress?: (p: Progress) => void, stop?: Int32Array): CheckRow {
-    return runRow(modelOf(text), plan, {
+  run(text: string, plan: RowPlan, onProgress?: (p: Progress) => void, stop?: Int32Array): Promise<CheckRow> {
+    // `by induction` rows load the solver into this worker on first use (runPlannedRow).
+    return runPlannedRow(modelOf(text), plan, {
       onProgress: onProgress ? (p) => onProgress(p) : undefined,
       shouldStop: stop ? () => Atomics.load(stop, 0) === 1 : undefined,
     })

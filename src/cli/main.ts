@@ -5,6 +5,7 @@ import { realpathSync } from 'node:fs'
 import { fileURLToPath } from 'node:url'
 import { Command, CommanderError } from 'commander'
 import type { RecordKernel } from '../../kernels/record/kernel'
+import { closeSolver } from '../../kernels/induction/solver'
 import { KERNEL_VERSION } from '../../kernels/record/record'
 import { runCheck, type CheckFlags } from './check'
 import { HOLDS, INCONCLUSIVE, REFUSED } from './exit'
@@ -114,4 +115,6 @@ function isEntry(): boolean {
 
 if (isEntry()) {
   process.exitCode = await main(process.argv.slice(2), processIo())
+  // A proof by induction leaves the solver's worker threads running; they would keep the process alive.
+  await closeSolver()
 }

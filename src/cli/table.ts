@@ -1,7 +1,7 @@
 // The readable form of a report: one table row per checked row, then what a reader needs below it:
 // counterexamples tick by tick in a compact form, the reasons a cutoff was refused, notes, and the
 // cutoff statements the verdicts stand for.
-import type { CheckRow, Counterexample, Report, ShownValue, TickRecord, Verdict } from '../../kernels/result'
+import type { CheckRow, Counterexample, InductionState, Report, ShownValue, TickRecord, Verdict } from '../../kernels/result'
 import { ruleLabel } from '../../kernels/symmetry/rules'
 
 /** `file:line:column: message`, the form editors and CI logs link from. */
@@ -48,7 +48,7 @@ export function renderReport(report: Report, options: RenderOptions = {}): strin
     oneProtocol ? row.property : `${row.protocol}/${row.property}`,
     instanceLabel(row),
     constantsLabel(row.constants),
-    row.verdict + (row.agreement === false ? ' (sizes disagree)' : ''),
+    row.verdict + (row.method === 'induction' ? ' by induction' : '') + (row.agreement === false ? ' (sizes disagree)' : ''),
     // A row with no instance (the cutoff was refused and no sizes were given) explored nothing.
     row.processes < 1 ? '-' : count(row.states, row.complete),
     row.processes < 1 ? '-' : count(row.transitions, row.complete),
@@ -103,6 +103,14 @@ export function renderCounterexample(cx: Counterexample, assignment: Record<stri
   const ticks = `${cx.ticks.length} tick${cx.ticks.length === 1 ? '' : 's'}`
   const shape = cx.kind === 'lasso' ? `lasso, ${ticks}, loop from tick index ${cx.loopStart}` : `${cx.kind}, ${ticks}`
   const lines = [`  counterexample (${shape}${bound ? `; ${bound}` : ''}): ${cx.message}`]
+  if (cx.kind === 'induction' && cx.induction) {
+    // A counterexample to induction is one tick from a state s that need not be reachable.
+    lines.push(...renderInductionState('s ', cx.induction.before))
+    cx.ticks.forEach((tick) => lines.push(`    t${tick.tick}  ${renderTick(tick)}`))
+    if (cx.induction.after) lines.push(...renderInductionState("s'", cx.induction.after))
+    if (cx.induction.conjunct) lines.push(`    fails in s': ${cx.induction.conjunct}`)
+    return lines
+  }
   if (cx.initial.length) {
     const start = cx.initial.map((p) => `#${p.process} ` + Object.entries(p.values).map(([k, v]) => `${k}=${shown(v)}`).join(' '))
     lines.push(`    start  ${start.join(' | ')}`)
@@ -118,6 +126,16 @@ export function renderCounterexample(cx: Counterexample, assignment: Record<stri
     for (const a of cx.atoms) lines.push(`      ${a.text.padEnd(width)}  ${a.values.map((v) => (v ? '+' : '.')).join('')}`)
   }
   return lines
+}
+
+/** A whole state of a counterexample to induction: one line for the processes, one for what is in flight. */
+export function renderInductionState(label: string, st: InductionState): string[] {
+  const procs = st.processes.map((p) => `#${p.process}${p.alive ? '' : ' (crashed)'}${p.idle !== undefined ? ` idle=${p.idle}` : ''} ` + Object.entries(p.values).map(([k, v]) => `${k}=${shown(v)}`).join(' '))
+  const flight = st.inFlight.map((m) => `#${m.from}->#${m.to} ${m.message}${m.age !== undefined ? `@${m.age}` : ''}`)
+  return [
+    `    ${label}     ${procs.join(' | ')}${st.stable !== undefined ? ` | stable=${st.stable}` : ''}`,
+    `    ${label.replace(/./g, ' ')}     in flight: ${flight.length ? flight.join(', ') : 'nothing'}`,
+  ]
 }
 
 /** One tick in compact form; `nothing` when no process acted. */

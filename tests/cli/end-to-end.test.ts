@@ -148,7 +148,8 @@ describe('twofold --shard and merge', () => {
   it('merges the shards of notebooks/guide.md into the unsharded record, which replays clean', async () => {
     const guide = join(repo, 'notebooks', 'guide.md')
     expect((await twofold(['check', guide, '--record', 'guide-all.json'], ws.dir)).code).toBe(1)
-    for (const i of [1, 2, 3]) expect([0, 1]).toContain((await twofold(['check', guide, '--shard', `${i}/3`, '--record', `guide${i}.json`], ws.dir)).code)
+    // A shard may hold only the guide's deliberately inconclusive proof by induction (exit 3).
+    for (const i of [1, 2, 3]) expect([0, 1, 3]).toContain((await twofold(['check', guide, '--shard', `${i}/3`, '--record', `guide${i}.json`], ws.dir)).code)
     const merged = await twofold(['merge', 'guide1.json', 'guide2.json', 'guide3.json'], ws.dir)
     expect(merged.code).toBe(0)
     // Oracle: the unsharded run. `patient at N = 2..3` puts G_2 and G_3 in different shards,

@@ -100,7 +100,7 @@ describe('fair graph', () => {
         const a = { ...runRow(nb, plan), seconds: 0 }
         const b = { ...runRow(nb, plan, { recomputeEdges: true }), seconds: 0 }
         expect(b).toEqual(a)
-        if (a.method === 'ltl' && a.verdict !== 'error') temporal++
+        if (a.search === 'ltl' && a.verdict !== 'error') temporal++
       }
     }
     expect(temporal).toBeGreaterThan(20)

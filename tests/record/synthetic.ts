@@ -69,7 +69,8 @@ export function row(index: number, overrides: Partial<CheckRow> = {}): CheckRow 
     cutoff: { applies: true, processes: property === 'idle' ? 1 : 2, statement: 'for every N: ...', tex: '', passed: ['1', '2'], reasons: [] },
     counterexample: null,
     assignment: property === 'idle' ? { p: 1 } : { p: 1, q: 2 },
-    method: 'invariant',
+    method: 'exploration',
+    search: 'invariant',
     ...overrides,
   }
 }

@@ -142,12 +142,13 @@ describe('check semantics', () => {
     expect(refused.counterexample!.atoms!.map((a) => a.text)).toEqual([`correct(#${q})`, `#${p}.seen[#${q}] <= 1`])
   })
 
-  test('a check by induction is inconclusive in this build and says so, proving nothing', () => {
-    const [row] = run(lamps('    broadcast blink', '```property\nproperty capped = forall p, q: always p.seen[q] <= cap\n```\n```check\ncheck lamps: capped at N = 2 by induction\n```'))
-    expect(row.verdict).toBe('inconclusive')
-    expect(row.note).toMatch(/induction.*not available/)
-    expect(row.states).toBe(0)
-  })
+  test('a check by induction is routed to the induction engine (runNotebook), not explored', async () => {
+    const report = await runNotebook(lamps('    broadcast blink', '```property\nproperty capped = forall p, q: always p.seen[q] <= cap\n```\n```check\ncheck lamps: capped at N = 2 by induction\n```'), 'l.md')
+    const [row] = report.checks
+    expect(row.method).toBe('induction')
+    expect(row.verdict).toBe('holds')
+    expect(row.solver).toMatch(/^z3-solver /)
+  }, 60_000)
 
   test('a notebook with errors checks nothing and reports each error with its position', async () => {
     const report = await runNotebook('```check\ncheck nowhere: x\n```\n', 'bad.md')

@@ -13,8 +13,10 @@ const isolation = {
 export default defineConfig({
   base: './',
   root: '.',
-  // Offline after one visit: a service worker precaches the whole build (page, kernel worker,
-  // styles, fonts), so the workbench reopens and runs checks with no network.
+  // Offline after one visit: a service worker precaches the build (page, kernel worker, styles,
+  // fonts), so the workbench reopens and runs checks with no network. The SMT solver (35 MB of
+  // WebAssembly) is loaded only by a proof by induction, so it is not precached; once fetched it is
+  // kept in a runtime cache, so proofs work offline after the first one.
   plugins: [
     VitePWA({
       registerType: 'autoUpdate',
@@ -22,7 +24,9 @@ export default defineConfig({
       manifest: false,
       workbox: {
         globPatterns: ['**/*.{html,js,css,woff2,woff,ttf,svg,wasm}'],
+        globIgnores: ['**/z3-built*'],
         maximumFileSizeToCacheInBytes: 16 * 1024 * 1024,
+        runtimeCaching: [{ urlPattern: /z3-built/, handler: 'CacheFirst', options: { cacheName: 'twofold-solver' } }],
         cleanupOutdatedCaches: true,
         navigateFallback: 'index.html',
       },

@@ -104,7 +104,7 @@ export function counterexampleSvg(cx: Counterexample, processes: number, opts: D
   // Labels sit on the row of the dots they name: "start" on the initial state, "tick t" on the tick.
   parts.push(html`<text class="state-label" x="${LEFT - 10}" y="${stateY(0) + 4}" text-anchor="end">${cx.kind === 'induction' ? 's' : 'start'}</text>`)
   for (let i = 0; i < ticks; i++) {
-    parts.push(html`<text class="state-label" x="${LEFT - 10}" y="${tickY(i) + 4}" text-anchor="end">${cx.kind === 'induction' ? "tick to s'" : `tick ${cx.ticks[i].tick}`}</text>`)
+    parts.push(html`<text class="state-label" x="${LEFT - 10}" y="${tickY(i) + 4}" text-anchor="end">${cx.kind === 'induction' ? "s'" : `tick ${cx.ticks[i].tick}`}</text>`)
   }
   if (cx.loopStart !== undefined && cx.loopStart >= 0 && cx.loopStart <= ticks) {
     const y1 = stateY(cx.loopStart)

@@ -175,12 +175,47 @@ function runPlainRow(model: NotebookModel, plan: RowPlan, opts: RunOptions): Che
   const n = row.processes
   try {
     runInstance(row, protocol, prop, check, n, plan.constants, cutoff, opts)
+    if (plan.processes === null && cutoff.processes === 1 && row.verdict === 'holds') {
+      confirmNoModelErrorsAtTwo(row, protocol, plan.constants, check.limit ?? DEFAULT_LIMIT, opts)
+    }
     return finish()
   } catch (e) {
     row.verdict = 'error'
     row.note = e instanceof ModelSetupError ? e.message : `the check could not be run: ${(e as Error).message}`
     return finish()
   }
+}
+
+/**
+ * cutoff.md, "Model errors and one-index properties": G_1 has no peer entries and no channels, so
+ * a one-index property granted the cutoff at G_1 stands for every N only once G_2 is free of model
+ * errors too. Explores G_2 for model errors only (no property); a model error there makes the row
+ * `violated` with G_2's trace, an unfinished search makes it `inconclusive`, and either way the
+ * statement says what was done about G_2.
+ */
+function confirmNoModelErrorsAtTwo(row: CheckRow, protocol: ProtocolModel, constants: number[], limit: number, opts: RunOptions): void {
+  const inst = compileInstance(protocol, 2, constants)
+  const r = explore(inst, { limit, shouldStop: opts.shouldStop })
+  const cutoff = { ...row.cutoff }
+  row.cutoff = cutoff
+  if (r.outcome === 'model-error' && r.error && r.trace) {
+    row.verdict = 'violated'
+    row.complete = false
+    row.counterexample = modelErrorCounterexample(inst, r.store, r.trace, r.error)
+    row.note = `G_1 satisfies \`${row.property}\`, but G_2 (2 processes) reaches a model error that G_1 cannot show (it has no peer entries and no channels); the counterexample is the run of G_2`
+    cutoff.statement = `${cutoff.statement}; not established: G_2 is not free of model errors`
+    return
+  }
+  if (!r.complete) {
+    row.verdict = 'inconclusive'
+    row.complete = false
+    row.note = r.stopped
+      ? 'the check was stopped while G_2 was being explored for model errors'
+      : `G_1 satisfies \`${row.property}\`, but G_2 could not be shown free of model errors within the state limit of ${limit} states; raise it with \`limit K states\``
+    cutoff.statement = `${cutoff.statement}; not established: G_2 was not fully explored for model errors`
+    return
+  }
+  cutoff.statement = `${cutoff.statement}; G_2 was checked free of model errors (${r.states} states)`
 }
 
 function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel, check: CheckModel, n: number,

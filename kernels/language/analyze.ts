@@ -102,6 +102,6 @@ function tidy(ds: Diagnostic[]): Diagnostic[] {
 
 /** The first level-1 heading, when there is no front-matter title. */
 function headingTitle(text: string): string | null {
-  const m = /^#[ \t]+(.+?)[ \t#]*$/m.exec(text)
+  const m = /(?:^|[\r\n])#[ \t]+([^\r\n]+?)[ \t#]*(?=[\r\n]|$)/.exec(text)
   return m ? m[1] : null
 }

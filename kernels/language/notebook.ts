@@ -22,15 +22,15 @@ const markdown = new MarkdownIt('commonmark')
  * blanks it out, so that Markdown sees neither a rule nor a heading there.
  */
 function frontMatter(text: string, lines: LineMap, diagnostics: Diagnostic[]): { title: string | null; body: string } {
-  if (!/^---[ \t]*\r?\n/.test(text)) return { title: null, body: text }
+  if (!/^---[ \t]*(\r\n?|\n)/.test(text)) return { title: null, body: text }
   let title: string | null = null
   const lineErrors: Diagnostic[] = []
   for (let line = 2; line <= lines.lines; line++) {
     const from = lines.lineStart(line)
-    const content = text.slice(from, lines.lineEnd(line)).replace(/\r$/, '')
+    const content = text.slice(from, lines.lineEnd(line))
     if (/^---[ \t]*$/.test(content)) {
       const end = lines.lineEnd(line)
-      const body = text.slice(0, end).replace(/[^\n]/g, ' ') + text.slice(end)
+      const body = text.slice(0, end).replace(/[^\r\n]/g, ' ') + text.slice(end)
       diagnostics.push(...lineErrors)
       return { title, body }
     }

@@ -1,13 +1,28 @@
 import type { Span } from './model'
 
-/** Maps offsets in a text to 1-based lines and columns (columns count UTF-16 code units). */
+/**
+ * Maps offsets in a text to 1-based lines and columns (columns count UTF-16 code units). A line
+ * ends at LF, CR or CRLF alike (CommonMark's line endings), so notebooks saved with any of them
+ * get the same lines.
+ */
 export class LineMap {
   private readonly starts: number[]
+  /** Offset just past the last character of each line (before its line ending). */
+  private readonly ends: number[]
 
   constructor(readonly text: string) {
-    const starts = [0]
-    for (let i = 0; i < text.length; i++) if (text.charCodeAt(i) === 10) starts.push(i + 1)
+    const starts = [0], ends: number[] = []
+    for (let i = 0; i < text.length; i++) {
+      const c = text.charCodeAt(i)
+      if (c === 10 || c === 13) {
+        ends.push(i)
+        if (c === 13 && text.charCodeAt(i + 1) === 10) i++
+        starts.push(i + 1)
+      }
+    }
+    ends.push(text.length)
     this.starts = starts
+    this.ends = ends
   }
 
   /** Number of lines in the text. */
@@ -20,8 +35,7 @@ export class LineMap {
 
   /** Offset just past the last character of a 1-based line (before its newline). */
   lineEnd(line: number): number {
-    const next = line < this.starts.length ? this.starts[line] - 1 : this.text.length
-    return next
+    return this.ends[Math.max(0, Math.min(line - 1, this.ends.length - 1))]
   }
 
   /** The 1-based line and column of an offset (clamped into the text). */

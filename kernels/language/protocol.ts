@@ -34,7 +34,7 @@ export function expressionChildren(node: SyntaxNode): SyntaxNode[] {
 /** The operator of a binary expression: the source text between its operands. */
 export function binaryOperator(node: SyntaxNode, ctx: BlockContext): string {
   const [l, r] = expressionChildren(node)
-  return ctx.block.text.slice(l.to, r.from).replace(/\/\/[^\n]*/g, '').trim()
+  return ctx.block.text.slice(l.to, r.from).replace(/\/\/[^\r\n]*/g, '').trim()
 }
 
 interface Typed { e: Expr; sort: Sort }

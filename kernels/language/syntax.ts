@@ -140,9 +140,12 @@ export const contextualWords: ReadonlySet<string> = new Set([
   'at', 'with', 'in', 'within', 'states', 'by', 'induction', 'processes', 'process', 'limit',
 ])
 
-/** Parses a block's text. */
+/**
+ * Parses a block's text. A lone CR ends a line as LF does (CommonMark), so it is read as LF: the
+ * same length, so every node keeps its offsets, and a line comment stops at it.
+ */
 export function parseBlock(text: string): Tree {
-  return parser.parse(text)
+  return parser.parse(text.includes('\r') ? text.replace(/\r(?!\n)/g, '\n') : text)
 }
 
 function enclosing(node: SyntaxNode): SyntaxNode | null {
@@ -151,7 +154,7 @@ function enclosing(node: SyntaxNode): SyntaxNode | null {
 }
 
 function firstToken(text: string): string {
-  const m = /^\s*(\/\/[^\n]*|[A-Za-z_]\w*|#\d+|\d+|:=|\.\.|->|!=|<=|>=|\S)/.exec(text)
+  const m = /^\s*(\/\/[^\r\n]*|[A-Za-z_]\w*|#\d+|\d+|:=|\.\.|->|!=|<=|>=|\S)/.exec(text)
   return m ? m[1] : ''
 }
 

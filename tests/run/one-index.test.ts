@@ -36,7 +36,7 @@ function run(text: string) {
 
 describe('one-index properties and model errors at G_2', () => {
   it('explicit sizes (the oracle): G_2 and G_3 reach a model error on a peer entry', () => {
-    const rows = run(notebook('seen[q] + 1', ' for 2..3 processes'))
+    const rows = run(notebook('seen[q] + 1', ' at N = 2..3'))
     expect(rows.map((r) => [r.processes, r.verdict, r.counterexample?.kind])).toEqual([
       [2, 'violated', 'model-error'],
       [3, 'violated', 'model-error'],
@@ -61,6 +61,6 @@ describe('one-index properties and model errors at G_2', () => {
     expect(row.processes).toBe(1)
     expect(row.cutoff.statement).toMatch(/G_2 was checked free of model errors/)
     // The oracle agrees: with explicit sizes the same protocol holds at 2 and 3.
-    expect(run(notebook('(seen[q] + 1) % 3', ' for 2..3 processes')).map((r) => r.verdict)).toEqual(['holds', 'holds'])
+    expect(run(notebook('(seen[q] + 1) % 3', ' at N = 2..3')).map((r) => r.verdict)).toEqual(['holds', 'holds'])
   })
 })

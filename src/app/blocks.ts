@@ -2,11 +2,10 @@
 // blocks (a CodeMirror editor, its diagnostics, typeset properties, and for checks the findings).
 // A view holds its segment (offsets into the notebook text) and reports edits to its host; it
 // never keeps a copy of the text that could drift from the notebook.
-import type { CheckRow, Progress } from '../../kernels/result'
+import { printProperties, type CheckRow, type Progress } from '../../kernels/api'
 import { button, el } from './dom'
 import { atomColour, counterexampleSvg, filledIn } from './diagram'
 import { BlockEditor, type NotebookDiagnostic } from './editor'
-import { propertiesToTex } from './formula-tex'
 import { renderProse, toFragment } from './markdown'
 import { findingsMarkdown, findingsMarkup } from './results'
 import type { Segment, SegmentKind } from './segments'
@@ -302,7 +301,7 @@ export class FormalView {
   refresh(content = this.host.text().slice(this.seg.contentFrom, this.seg.contentTo)): void {
     this.nameEl.textContent = describeBlock(this.kind, content)
     if (this.typeset) {
-      const props = propertiesToTex(content)
+      const props = printProperties(content)
       this.typeset.replaceChildren(...props.map((p) => {
         const item = el('div', { class: 'typeset-item' }, el('span', { class: 'typeset-name' }, p.name))
         if (p.tex) item.append(toFragment(texToHtml(p.tex)))

@@ -3,9 +3,10 @@
 // Stopping uses a shared flag when the page is cross-origin isolated; otherwise the run worker is
 // ended and a fresh one started (the row then has no result at all, and the page says so).
 import * as Comlink from 'comlink'
-import type { NotebookModel, RowPlan } from '../../kernels/api'
-import type { CheckRow, Progress } from '../../kernels/result'
-import type { KernelApi } from './worker'
+import type { CheckRow, NotebookModel, Progress, RowPlan } from '../../kernels/api'
+import type { KernelApi, MadeRecord } from './worker'
+
+export type { MadeRecord }
 
 /** Raised by `run` when the user stopped a check that could not be stopped gently. */
 export class StoppedError extends Error {
@@ -34,6 +35,26 @@ export class Kernel {
 
   plan(text: string, check?: number): Promise<RowPlan[]> {
     return this.reader.api.plan(text, check)
+  }
+
+  /** The kernel's SHA-256 of each text (or the text itself, prefixed `text:`, without Web Crypto). */
+  digests(texts: string[]): Promise<string[]> {
+    return this.reader.api.digests(texts)
+  }
+
+  /**
+   * Runs every check and builds the verification record in the run worker, as the command line
+   * does. Not stoppable: the caller runs no check meanwhile. Rejects with StoppedError if the run
+   * worker had to be ended.
+   */
+  record(text: string, path: string, onProgress: (p: Progress) => void): Promise<MadeRecord> {
+    return new Promise<MadeRecord>((resolve, reject) => {
+      this.rejectRun = reject
+      this.runner.api
+        .record(text, path, Comlink.proxy(onProgress))
+        .then(resolve, reject)
+        .finally(() => { this.rejectRun = null })
+    })
   }
 
   /** Runs one row; rejects with StoppedError if `stop` had to end the worker. */

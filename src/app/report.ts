@@ -3,9 +3,8 @@
 // diagrams, the caution, and the notebook's SHA-256. No scripts: a Content-Security-Policy that
 // allows none makes that a property of the file, not only of how we wrote it. Math is MathML, which
 // browsers typeset without KaTeX's fonts.
-import type { CheckRow } from '../../kernels/result'
+import { printProperties, type CheckRow } from '../../kernels/api'
 import { DIAGRAM_CSS } from './diagram'
-import { propertiesToTex } from './formula-tex'
 import { html, raw, type Markup } from './html'
 import { CAUTION, findingsMarkup } from './results'
 import { summaryMarkup } from './summary'
@@ -82,7 +81,7 @@ export function buildReport(input: ReportInput): string {
     }
     parts.push(html`<pre class="formal"><span class="kind">${seg.kind}</span>${content}</pre>`)
     if (seg.kind === 'property') {
-      const typeset = propertiesToTex(content).filter((p) => p.tex)
+      const typeset = printProperties(content).filter((p) => p.tex)
       if (typeset.length) parts.push(html`<div class="typeset">${typeset.map((p) => html`<div><b>${p.name}</b>: ${raw(texToHtml(p.tex!, false, true))}</div>`)}</div>`)
     }
     if (seg.kind === 'check') {

@@ -2,8 +2,9 @@
 // pair of offsets into it, recomputed from the text after every structural edit, and every edit
 // of a block is a replacement of its content span. Formal blocks are the fences whose info string
 // starts with `protocol`, `property` or `check` (language.md); prose is split at headings so that
-// sections can be moved as blocks.
-import MarkdownIt from 'markdown-it'
+// sections can be moved as blocks. The fences, headings and front matter are the kernel reader's
+// spans (kernels/language/spans.ts), so the page and the kernel read one notebook the same way.
+import { notebookSpans, type FenceSpan } from '../../kernels/api'
 
 /** What a segment holds. `front` is the front-matter block between `---` lines. */
 export type SegmentKind = 'front' | 'prose' | 'protocol' | 'property' | 'check'
@@ -21,7 +22,6 @@ export interface Segment {
 }
 
 const FORMAL = new Set(['protocol', 'property', 'check'])
-const md = new MarkdownIt('commonmark')
 
 /** Offsets of the first character of every line (line 1 at index 0). */
 export function lineStarts(text: string): number[] {
@@ -37,44 +37,21 @@ export function offsetOf(text: string, line: number, column: number): number {
   return Math.min(starts[l - 1] + Math.max(column, 1) - 1, text.length)
 }
 
-/** The length of a front-matter block at the very start of the text (0 when there is none). */
-export function frontMatterLength(text: string): number {
-  const m = /^---[ \t]*\r?\n(?:.*\r?\n)*?---[ \t]*(?:\r?\n|$)/.exec(text)
-  return m ? m[0].length : 0
-}
-
 function isBlank(text: string, from: number, to: number): boolean {
   return /^\s*$/.test(text.slice(from, to))
 }
 
+/** A place where a new segment starts: a formal block (with its spans) or a heading (prose). */
+type Cut = { from: number; fence: FenceSpan | null }
+
 /** Splits the notebook text into segments. Pure; the same text always gives the same segments. */
 export function segment(text: string): Segment[] {
-  const starts = lineStarts(text)
-  const lineCount = starts.length
-  const at = (line: number) => (line >= lineCount ? text.length : starts[line]) // 0-based line
-  const front = frontMatterLength(text)
-  const frontLines = front ? text.slice(0, front).split('\n').length - (text.slice(0, front).endsWith('\n') ? 1 : 0) : 0
-  // Blank out the front matter (keeping line numbers) so markdown-it does not read it as prose.
-  const body = front ? '\n'.repeat(frontLines) + text.slice(front) : text
-  const tokens = md.parse(body, {})
-
-  // Cut points: [line, kind, contentFromLine, contentToLine] for formal blocks; headings start prose.
-  type Cut = { line: number; kind: SegmentKind; endLine: number; contentLine: number; contentEndLine: number }
-  const cuts: Cut[] = []
-  for (const t of tokens) {
-    if (t.level !== 0 || !t.map) continue
-    const [a, b] = t.map
-    if (t.type === 'fence' && FORMAL.has(t.info.trim().split(/\s+/)[0])) {
-      // The closing fence is the last mapped line when it is a fence line; an unclosed fence runs to the end.
-      const lastLine = b - 1
-      const lastText = text.slice(at(lastLine), at(lastLine + 1)).trim()
-      const closed = b - a >= 2 && /^(`{3,}|~{3,})$/.test(lastText)
-      cuts.push({ line: a, kind: t.info.trim().split(/\s+/)[0] as SegmentKind, endLine: b, contentLine: a + 1, contentEndLine: closed ? lastLine : b })
-    } else if (t.type === 'heading_open') {
-      cuts.push({ line: a, kind: 'prose', endLine: -1, contentLine: a, contentEndLine: -1 })
-    }
-  }
-
+  const spans = notebookSpans(text)
+  const cuts: Cut[] = [
+    ...spans.fences.filter((f) => !f.nested && FORMAL.has(f.kind)).map((f) => ({ from: f.from, fence: f })),
+    ...spans.headings.filter((h) => !h.nested).map((h) => ({ from: h.from, fence: null })),
+  ].sort((a, b) => a.from - b.from)
+  const front = spans.front?.to ?? 0
   const segs: Segment[] = []
   if (front) segs.push({ kind: 'front', from: 0, to: front, contentFrom: 0, contentTo: front })
   let pos = front
@@ -90,17 +67,12 @@ export function segment(text: string): Segment[] {
     }
     pos = to
   }
-  for (const c of cuts) {
-    const from = at(c.line)
+  for (const { from, fence } of cuts) {
     if (from < pos) continue
-    if (c.kind === 'prose') {
-      pushProse(from)
-      continue
-    }
     pushProse(from)
-    const to = at(c.endLine)
-    segs.push({ kind: c.kind, from, to, contentFrom: at(c.contentLine), contentTo: Math.max(at(c.contentLine), at(c.contentEndLine)) })
-    pos = to
+    if (!fence) continue
+    segs.push({ kind: fence.kind as SegmentKind, from, to: fence.to, contentFrom: fence.contentFrom, contentTo: fence.contentTo })
+    pos = fence.to
   }
   pushProse(text.length)
   if (!segs.length) segs.push({ kind: 'prose', from: 0, to: text.length, contentFrom: 0, contentTo: text.length })

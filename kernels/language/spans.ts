@@ -120,7 +120,9 @@ function fenceSpan(text: string, lines: LineMap, token: { info: string; markup: 
   const openLine = open + 1
   const lastLine = Math.max(openLine, next) // 1-based number of the block's last line
   const opening = text.slice(lines.lineStart(openLine), lines.lineEnd(openLine))
-  const last = text.slice(lines.lineStart(lastLine), lines.lineEnd(lastLine)).trim()
+  const nested = token.level > 0 || /^\s*>/.test(opening)
+  // A quote's markers are not part of the closing fence.
+  const last = text.slice(lines.lineStart(lastLine), lines.lineEnd(lastLine)).replace(nested ? /^[\s>]*/ : /^/, '').trim()
   const marker = token.markup
   const closed = lastLine > openLine && last.startsWith(marker[0].repeat(marker.length)) && /^(`{3,}|~{3,})$/.test(last)
   const to = after(lines, lastLine)
@@ -128,7 +130,7 @@ function fenceSpan(text: string, lines: LineMap, token: { info: string; markup: 
   return {
     kind: token.info.trim().split(/\s+/)[0] ?? '',
     marker,
-    nested: token.level > 0 || /^\s*>/.test(opening),
+    nested,
     closed,
     openLine,
     lastLine,

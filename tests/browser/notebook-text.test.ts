@@ -4,6 +4,7 @@
 import { describe, expect, it } from 'vitest'
 import { contentOf, deleteBlock, insertBlock, moveBlock, offsetOf, replaceContent, segment } from '../../src/app/segments'
 import { titleOf, withTitle } from '../../src/app/title'
+import { analyzeNotebook } from '../../kernels/api'
 
 const harbour = [
   '---',
@@ -128,5 +129,25 @@ describe('withTitle', () => {
   })
   it('keeps a new title on one line', () => {
     expect(titleOf(withTitle(harbour, 'a\nb'))).toBe('a b')
+  })
+})
+
+describe('the page reads a notebook as the kernel does', () => {
+  // Oracle: the kernel's own reader (analyzeNotebook); the page's segments come from the same spans.
+  const fenced = 'Intro words.\n\n```js\n# not a title\n```\n\n## Depot watch\n\n```check\ncheck depot: calm\n```\n'
+  it('does not take a `# heading` inside a fenced block as the title (the page)', () => {
+    expect(titleOf(fenced)).toBe('Depot watch')
+    expect(titleOf(fenced)).toBe(analyzeNotebook(fenced).title)
+    // Nor does it start a prose section there: the fence stays inside the first prose segment.
+    expect(tiles(fenced).map((s) => [s.kind, fenced.slice(s.from, s.to).split('\n')[0]])).toEqual([
+      ['prose', 'Intro words.'], ['prose', '## Depot watch'], ['check', '```check'],
+    ])
+  })
+  it('cuts formal segments exactly where the kernel reads its blocks', () => {
+    for (const text of [harbour, fenced, harbour.replace(/\n/g, '\r\n')]) {
+      const formal = segment(text).filter((s) => s.kind !== 'prose' && s.kind !== 'front')
+      const blocks = analyzeNotebook(text).blocks
+      expect(formal.map((s) => [s.kind, s.contentFrom, contentOf(text, s).replace(/\r?\n$/, '')])).toEqual(blocks.map((b) => [b.kind, b.from, b.text]))
+    }
   })
 })

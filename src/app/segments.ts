@@ -4,7 +4,7 @@
 // starts with `protocol`, `property` or `check` (language.md); prose is split at headings so that
 // sections can be moved as blocks. The fences, headings and front matter are the kernel reader's
 // spans (kernels/language/spans.ts), so the page and the kernel read one notebook the same way.
-import { notebookSpans, type FenceSpan } from '../../kernels/api'
+import { LineMap, notebookSpans, type FenceSpan } from '../../kernels/api'
 
 /** What a segment holds. `front` is the front-matter block between `---` lines. */
 export type SegmentKind = 'front' | 'prose' | 'protocol' | 'property' | 'check'
@@ -23,18 +23,10 @@ export interface Segment {
 
 const FORMAL = new Set(['protocol', 'property', 'check'])
 
-/** Offsets of the first character of every line (line 1 at index 0). */
-export function lineStarts(text: string): number[] {
-  const starts = [0]
-  for (let i = 0; i < text.length; i++) if (text.charCodeAt(i) === 10) starts.push(i + 1)
-  return starts
-}
-
-/** Converts a 1-based line and column to an offset, clamped to the text. */
+/** Converts a 1-based line and column to an offset, clamped to the text (lines end at LF, CR or CRLF, as the kernel reads them). */
 export function offsetOf(text: string, line: number, column: number): number {
-  const starts = lineStarts(text)
-  const l = Math.min(Math.max(line, 1), starts.length)
-  return Math.min(starts[l - 1] + Math.max(column, 1) - 1, text.length)
+  const lines = new LineMap(text)
+  return Math.min(lines.lineStart(Math.max(line, 1)) + Math.max(column, 1) - 1, text.length)
 }
 
 function isBlank(text: string, from: number, to: number): boolean {
@@ -142,13 +134,5 @@ export function moveBlock(text: string, index: number, direction: -1 | 1): strin
 
 /** The 1-based line number of an offset in `text`. */
 export function lineAt(text: string, offset: number): number {
-  const starts = lineStarts(text)
-  let lo = 0
-  let hi = starts.length - 1
-  while (lo < hi) {
-    const mid = (lo + hi + 1) >> 1
-    if (starts[mid] <= offset) lo = mid
-    else hi = mid - 1
-  }
-  return lo + 1
+  return new LineMap(text).position(offset).line
 }

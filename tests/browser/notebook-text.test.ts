@@ -2,7 +2,7 @@
 // tiling invariant (segments concatenate back to the text) and hand-read expectations on short
 // fixtures.
 import { describe, expect, it } from 'vitest'
-import { contentOf, deleteBlock, insertBlock, moveBlock, offsetOf, replaceContent, segment } from '../../src/app/segments'
+import { contentOf, deleteBlock, insertBlock, lineAt, moveBlock, offsetOf, replaceContent, segment } from '../../src/app/segments'
 import { titleOf, withTitle } from '../../src/app/title'
 import { analyzeNotebook } from '../../kernels/api'
 
@@ -103,6 +103,13 @@ describe('block edits', () => {
 describe('offsetOf', () => {
   it('maps line and column to an offset', () => {
     expect(harbour.slice(offsetOf(harbour, 10, 10))).toMatch(/^lights \{/)
+  })
+  it('counts CR and CRLF line endings as the kernel does', () => {
+    for (const eol of ['\r', '\r\n']) {
+      const text = harbour.replace(/\n/g, eol)
+      expect(text.slice(offsetOf(text, 10, 10))).toMatch(/^lights \{/)
+      expect(lineAt(text, offsetOf(text, 10, 10))).toBe(10)
+    }
   })
 })
 

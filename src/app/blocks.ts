@@ -248,9 +248,10 @@ export class CheckLineView {
     this.status.textContent = text
   }
 
-  progress(p: Progress, rowIndex: number, rowCount: number): void {
+  /** Shows a running row's counts; `where` says which row (`row 2 of 5`, `for the record`). */
+  progress(p: Progress, where: string): void {
     const n = (x: number) => Math.round(x).toLocaleString('en-US')
-    this.status.textContent = `row ${rowIndex + 1} of ${rowCount}: ${p.property} with ${p.processes} ${p.processes === 1 ? 'process' : 'processes'} · ${n(p.states)} states · ${n(p.statesPerSecond)} states/s · ${p.seconds.toFixed(1)} s`
+    this.status.textContent = `${where}: ${p.property} with ${p.processes} ${p.processes === 1 ? 'process' : 'processes'} · ${n(p.states)} states · ${n(p.statesPerSecond)} states/s · ${p.seconds.toFixed(1)} s`
   }
 
   note(text: string): void { this.status.textContent = text }

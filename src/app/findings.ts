@@ -161,13 +161,17 @@ export class Findings {
     const text = this.host.text()
     this.running = { check: -1, stop: false }
     this.setAllRunnable(false)
-    this.host.notice('Making the verification record: the kernel runs every check of the notebook.')
+    const lines = this.checks.map((_, c) => this.lineView(c))
+    for (const l of lines) l?.running(true, 'running for the record…')
     try {
-      const made = await this.host.kernel.record(text, path, (p) => this.lineView(p.check)?.note(`running for the record: ${p.property} with ${p.processes} ${p.processes === 1 ? 'process' : 'processes'}`))
+      const made = await this.host.kernel.record(text, path, (p) => this.lineView(p.check)?.progress(p, 'for the record'))
+      for (const l of lines) l?.running(false)
+      if (!made) { this.host.notice('No record was made: stopped by you.'); return null }
       if (this.host.text() === text) this.adopt(made.rows)
       return made.json
     } catch (e) {
-      this.host.notice(`No record was made: ${e instanceof StoppedError ? 'the run was stopped' : `the kernel failed (${(e as Error)?.message ?? e})`}.`)
+      for (const l of lines) l?.running(false)
+      this.host.notice(`No record was made: ${e instanceof StoppedError ? 'stopped by you' : `the kernel failed (${(e as Error)?.message ?? e})`}.`)
       return null
     } finally {
       this.running = null
@@ -229,7 +233,7 @@ export class Findings {
           const plan = await this.host.kernel.plan(text, c)
           planned = plan.length
           for (let r = 0; r < plan.length && !this.running.stop; r++) {
-            rows.push(await this.host.kernel.run(text, plan[r], (p) => this.lineView(c)?.progress(p, r, plan.length)))
+            rows.push(await this.host.kernel.run(text, plan[r], (p) => this.lineView(c)?.progress(p, `row ${r + 1} of ${plan.length}`)))
           }
         } catch (e) {
           this.lineView(c)?.running(false)

@@ -44,14 +44,15 @@ export class Kernel {
 
   /**
    * Runs every check and builds the verification record in the run worker, as the command line
-   * does. Not stoppable: the caller runs no check meanwhile. Rejects with StoppedError if the run
-   * worker had to be ended.
+   * does. Resolves to null when `stop` stopped it gently; rejects with StoppedError if `stop` had
+   * to end the worker.
    */
-  record(text: string, path: string, onProgress: (p: Progress) => void): Promise<MadeRecord> {
-    return new Promise<MadeRecord>((resolve, reject) => {
+  record(text: string, path: string, onProgress: (p: Progress) => void): Promise<MadeRecord | null> {
+    if (this.stopFlag) Atomics.store(this.stopFlag, 0, 0)
+    return new Promise<MadeRecord | null>((resolve, reject) => {
       this.rejectRun = reject
       this.runner.api
-        .record(text, path, Comlink.proxy(onProgress))
+        .record(text, path, Comlink.proxy(onProgress), this.stopFlag ?? undefined)
         .then(resolve, reject)
         .finally(() => { this.rejectRun = null })
     })

@@ -59,10 +59,12 @@ export const kernelApi = {
   /**
    * Runs every check of the notebook and builds its verification record, exactly as
    * `twofold check --record` does (runNotebook, then buildRecord); `path` is the notebook's name
-   * in the record.
+   * in the record. `stop` is the shared flag of `run`: a stopped run makes no record (null).
    */
-  async record(text: string, path: string, onProgress?: (p: Progress) => void): Promise<MadeRecord> {
-    const report = await runNotebook(text, path, { onProgress: onProgress ? (p) => onProgress(p) : undefined })
+  async record(text: string, path: string, onProgress?: (p: Progress) => void, stop?: Int32Array): Promise<MadeRecord | null> {
+    const stopped = () => stop !== undefined && Atomics.load(stop, 0) === 1
+    const report = await runNotebook(text, path, { onProgress: onProgress ? (p) => onProgress(p) : undefined, shouldStop: stop ? stopped : undefined })
+    if (stopped()) return null
     const record = await buildRecord(report, text, modelOf(text))
     return { rows: record.checks, json: canonicalJsonPretty(record) + '\n' }
   },

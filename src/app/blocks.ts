@@ -5,6 +5,7 @@
 import { printProperties, type CheckRow, type Progress } from '../../kernels/api'
 import { button, el } from './dom'
 import { atomColour, counterexampleSvg, filledIn } from './diagram'
+import { parser } from '../../kernels/language/parser.js'
 import { BlockEditor, type NotebookDiagnostic } from './editor'
 import { renderProse, toFragment } from './markdown'
 import { findingsMarkdown, findingsMarkup } from './results'
@@ -31,11 +32,18 @@ export interface BlockHost {
 /** Either kind of block view. */
 export type BlockView = ProseView | FormalView
 
+const DECL_OF: Partial<Record<SegmentKind, string>> = { protocol: 'ProtocolDecl', property: 'PropertyDecl', check: 'CheckDecl' }
+
+/** What a formal block defines, read with the kernel's parser: its protocol, its properties, or the protocols it checks. */
 function describeBlock(kind: SegmentKind, content: string): string {
-  if (kind === 'protocol') return /protocol\s+([A-Za-z_]\w*)/.exec(content)?.[1] ?? ''
-  if (kind === 'property') return [...content.matchAll(/^\s*property\s+([A-Za-z_]\w*)/gm)].map((m) => m[1]).join(', ')
-  if (kind === 'check') return [...new Set([...content.matchAll(/^\s*check\s+([A-Za-z_]\w*)/gm)].map((m) => m[1]))].join(', ')
-  return ''
+  const decl = DECL_OF[kind]
+  if (!decl) return ''
+  const names: string[] = []
+  for (let d = parser.parse(content).topNode.firstChild; d; d = d.nextSibling) {
+    const id = d.name === decl ? d.getChild('Identifier') : null
+    if (id) names.push(content.slice(id.from, id.to))
+  }
+  return (kind === 'protocol' ? names.slice(0, 1) : [...new Set(names)]).join(', ')
 }
 
 const KIND_WORDS: Record<SegmentKind, string> = { front: 'front matter', prose: 'text', protocol: 'protocol', property: 'properties', check: 'checks' }

@@ -95,9 +95,10 @@ class NotAFormula extends Error {}
 const BIN_WORDS = new Set(['iff', 'implies', 'or', 'and', 'until', 'unless', '+', '-', '*', '/', '%'])
 const COMPARE = new Set(['=', '!=', '<', '<=', '>', '>='])
 
+/** The children of a node, comments left out (they may sit between any two tokens). */
 function kids(node: SyntaxNode): SyntaxNode[] {
   const out: SyntaxNode[] = []
-  for (let c = node.firstChild; c; c = c.nextSibling) out.push(c)
+  for (let c = node.firstChild; c; c = c.nextSibling) if (c.name !== 'LineComment') out.push(c)
   return out
 }
 

@@ -34,6 +34,9 @@ describe('printFormula', () => {
     expect(printFormula('forall p, q:\n  always (correct(q)   implies not p.suspect[q]) // a comment\n')?.text)
       .toBe('forall p, q: always (correct(q) implies not p.suspect[q])')
   })
+  it('reads past comments between any two tokens', () => {
+    expect(printFormula('forall p: // every lamp\n  always // from the start\n  (p.x // its count\n  >= 0)')?.text).toBe('forall p: always (p.x >= 0)')
+  })
   it('refuses text that is not a formula', () => {
     expect(printFormula('forall p: always p.x = \\href{javascript:1}')).toBeNull()
     expect(printFormula('always (p.x')).toBeNull()

@@ -5,6 +5,7 @@
 // sections can be moved as blocks. The fences, headings and front matter are the kernel reader's
 // spans (kernels/language/spans.ts), so the page and the kernel read one notebook the same way.
 import { LineMap, notebookSpans, type FenceSpan } from '../../kernels/api'
+import { parser } from '../../kernels/language/parser.js'
 
 /** What a segment holds. `front` is the front-matter block between `---` lines. */
 export type SegmentKind = 'front' | 'prose' | 'protocol' | 'property' | 'check'
@@ -81,6 +82,21 @@ export function replaceContent(text: string, seg: Segment, content: string): str
   return text.slice(0, seg.contentFrom) + content + text.slice(seg.contentTo)
 }
 
+const DECL = { protocol: 'ProtocolDecl', property: 'PropertyDecl' }
+
+/** The first name a `protocol` or `property` block of the notebook declares, read with the kernel's parser. */
+function firstDeclared(text: string, kind: 'protocol' | 'property'): string | null {
+  for (const f of notebookSpans(text).fences) {
+    if (f.nested || f.kind !== kind) continue
+    const content = text.slice(f.contentFrom, f.contentTo)
+    for (let d = parser.parse(content).topNode.firstChild; d; d = d.nextSibling) {
+      const id = d.name === DECL[kind] ? d.getChild('Identifier') : null
+      if (id) return content.slice(id.from, id.to)
+    }
+  }
+  return null
+}
+
 /** The short template a new block of each kind starts with; a check names the notebook's first protocol and property. */
 export function newBlockText(kind: Exclude<SegmentKind, 'front'>, text = ''): string {
   if (kind === 'prose') return '## New section\n\nWrite the argument here.\n\n'
@@ -90,9 +106,9 @@ export function newBlockText(kind: Exclude<SegmentKind, 'front'>, text = ''): st
       '  state seen[peer]: bool = false\n  on flash from q { seen[q] := true }\n  step { broadcast flash }\n}\n')
   }
   // Properties and checks start from the names the notebook already has, so they read at once.
-  const protocol = /^\s*protocol\s+([A-Za-z_]\w*)/m.exec(text)?.[1] ?? 'lighthouse'
+  const protocol = firstDeclared(text, 'protocol') ?? 'lighthouse'
   if (kind === 'property') return fence('property steady = forall p: always (alive(p) or crashed(p))\n')
-  const property = /^\s*property\s+([A-Za-z_]\w*)/m.exec(text)?.[1] ?? 'steady'
+  const property = firstDeclared(text, 'property') ?? 'steady'
   return fence(`check ${protocol}: ${property}\n`)
 }
 

@@ -2,7 +2,7 @@
 // tiling invariant (segments concatenate back to the text) and hand-read expectations on short
 // fixtures.
 import { describe, expect, it } from 'vitest'
-import { contentOf, deleteBlock, insertBlock, lineAt, moveBlock, offsetOf, replaceContent, segment } from '../../src/app/segments'
+import { contentOf, deleteBlock, insertBlock, lineAt, moveBlock, newBlockText, offsetOf, replaceContent, segment } from '../../src/app/segments'
 import { titleOf, withTitle } from '../../src/app/title'
 import { analyzeNotebook } from '../../kernels/api'
 
@@ -78,6 +78,10 @@ describe('block edits', () => {
     const next = insertBlock(harbour, 99, 'prose')
     expect(tiles(next).map((s) => s.kind).at(-1)).toBe('prose')
     expect(next.startsWith(harbour)).toBe(true)
+  })
+  it('starts a new check from the names the blocks declare, not from words in prose or comments', () => {
+    const text = 'protocol words in prose.\n\n```protocol\n// protocol nope\nprotocol quay { timing asynchronous }\n```\n\n```property\nproperty calm = always true\n```\n'
+    expect(newBlockText('check', text)).toBe('```check\ncheck quay: calm\n```\n\n')
   })
   it('never inserts above the front matter', () => {
     expect(tiles(insertBlock(harbour, 0, 'prose'))[0].kind).toBe('front')

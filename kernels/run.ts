@@ -332,17 +332,26 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
     }
     const ltl = fromModel(prop.formula, (t) => terms.indexOf(t))
     let stoppedByLimit = false
+    const report = () => {
+      const seconds = (performance.now() - t0) / 1000
+      progress?.({ states: r.states, transitions: r.transitions, statesPerSecond: seconds > 0 ? r.states / seconds : 0, seconds })
+    }
     const v = checkLtl(sys, ltl, {
       shouldStop: () => stoppedByLimit || (opts.shouldStop?.() ?? false),
       onProgress: (nodes) => {
         if (nodes > limit * 8) stoppedByLimit = true
-        const seconds = (performance.now() - t0) / 1000
-        progress?.({ states: r.states, transitions: r.transitions, statesPerSecond: seconds > 0 ? r.states / seconds : 0, seconds })
+        report()
       },
+      translation: { onProgress: report },
     })
     productNodes = Math.max(productNodes, v.nodes)
     if (v.stopped || stoppedByLimit) {
       row.note = 'the check was stopped before the temporal search finished'
+      return row
+    }
+    if (v.holds === null) {
+      // The translation gave up (budget or acceptance sets): inconclusive, never a verdict.
+      row.note = `property \`${prop.name}\` was not checked: ${v.reason}; split it into several properties or simplify it`
       return row
     }
     if (v.holds === false) {

@@ -5,16 +5,40 @@
 // that another state can stand in for, and the quotient by the coarsest bisimulation that
 // respects labels and acceptance.
 //
+// Before the tableau (`ltlToAutomaton`):
+// - every maximal temporal-free subformula becomes one letter, a state predicate (`abstractStates`
+//   in ltl.ts), so a chain of `iff` over state formulas is one letter;
+// - the formula is simplified (`simplify`);
+// - a disjunction is translated disjunct by disjunct and the automata joined side by side (the
+//   union of their languages), so `eventually always a or eventually always b` costs the sum of
+//   two small automata instead of the product the tableau would build;
+// - the conjuncts `always eventually p` of a conjunction, p a letter or its negation, become one
+//   automaton of k+1 states for k of them (one state per p, in its own acceptance set, and one
+//   waiting state; every state leads to every state), intersected with the automaton of the
+//   other conjuncts; the tableau would build 2^k states.
+// The tableau itself expands each set of obligations (GPVW's Next) once and keys its states by
+// (label, unfulfilled promises, next obligations), so two nodes that differ only in the
+// bookkeeping of Old are one state. Within the expansion of one set, a node is dropped when
+// another node reads a weaker label, owes a subset of its next obligations and leaves a subset
+// of its promises unfulfilled (as in the simplifications of P. Gastin and D. Oddoux, "Fast LTL to
+// Büchi automata translation", CAV 2001, Sect. 4); and a next obligation φ is dropped when
+// `ψ release φ` is also owed (which implies φ).
+//
+// Every step counts what it creates (nodes expanded, states, transitions) against a budget; above
+// it, or when asked to stop, the translation ends with `TranslationAborted`, never a verdict.
+//
 // Conventions of the result:
-// - Labels are on states. A state's label is a conjunction of atom literals, two masks: the atoms
-//   that must hold and those that must not. A run q0 q1 q2 ... reads the word a0 a1 a2 ... when
-//   every q_i's label holds of a_i: the first letter is checked against an initial state.
-// - Acceptance is state-based, one set per `until` subformula (the tableau's rule: a state is in
-//   the set of `f until g` when it does not promise `f until g` or it fulfils g), minus the sets
-//   that the reductions prove redundant. A run is accepting when it visits every set infinitely
-//   often. As transition marks (what the product and the emptiness check use) an edge carries the
-//   sets of its source state: `transitionMarks`.
-import { type Ltl, isNnf, key, simplify } from './ltl'
+// - Labels are on states. A state's label is a conjunction of letter literals, two bit rows: the
+//   letters that must hold and those that must not. A run q0 q1 q2 ... reads the word a0 a1 a2
+//   ... when every q_i's label holds of a_i: the first letter is checked against an initial state.
+//   Letters are the formula's atoms, or, when `predicates` is present, the state predicates it
+//   lists (letter i holds in a state when `predicates[i]` does).
+// - Acceptance is state-based (the tableau's rule: a state is in the set of `f until g` when it
+//   does not promise `f until g` or it fulfils g), minus the sets that the reductions prove
+//   redundant. A run is accepting when it visits every set infinitely often. As transition marks
+//   (what the product and the emptiness check use) an edge carries the sets of its source state:
+//   `transitionMarks`.
+import { type Ltl, abstractStates, atomCount, isNnf, key, show, simplify, stateHolds } from './ltl'
 import { csrFromEdges, tarjanScc } from './scc'
 
 /** A generalized Büchi automaton with state labels; plain data, see the file comment for the conventions. */
@@ -23,9 +47,11 @@ export interface Automaton {
   states: number
   /** Initial states, ascending. */
   initial: Int32Array
-  /** Per state: the atoms that must hold (bit i = atom i). */
+  /** 32-bit words per label row (letters 0..32 * labelWords - 1); 1 while there are at most 32 letters. */
+  labelWords: number
+  /** Per state, `labelWords` words from q * labelWords: the letters that must hold (bit i of word w = letter 32w + i). */
   mustTrue: Uint32Array
-  /** Per state: the atoms that must not hold. */
+  /** Per state, likewise: the letters that must not hold. */
   mustFalse: Uint32Array
   /** Successors in CSR form: the successors of q are `succ[succStart[q] .. succStart[q+1])`, ascending. */
   succStart: Int32Array
@@ -34,12 +60,107 @@ export interface Automaton {
   accept: Uint32Array
   /** Number of acceptance sets (bits 0..acceptanceSets-1 of `accept`); at most 31. */
   acceptanceSets: number
+  /** When present, letter i is this temporal-free formula over the atoms (see `abstractStates`); else letter i is atom i. */
+  predicates?: Ltl[]
+  /** One more than the highest atom the letters read (0 when none): the atom row of a state needs ceil(atoms / 32) words. */
+  atoms: number
 }
 
-/** Whether state q's label holds of a letter (the mask of atoms that hold). */
-export function labelHolds(aut: Automaton, q: number, atoms: number): boolean {
-  // xor rather than ===, so that bit 31 compares alike in signed and unsigned masks.
-  return ((atoms & aut.mustTrue[q]) ^ aut.mustTrue[q]) === 0 && (atoms & aut.mustFalse[q]) === 0
+/** Default budget of one translation: nodes expanded plus states and transitions created. */
+export const TRANSLATION_BUDGET = 200_000
+
+/** Work counters of one translation (filled in when passed as `TranslationOptions.work`). */
+export interface TranslationWork {
+  /** Everything counted against the budget: tableau nodes expanded, states and transitions created. */
+  created: number
+  /** States and transitions before the reductions (of every piece, summed). */
+  rawStates: number
+  rawTransitions: number
+}
+
+/** Options of `ltlToAutomaton`. */
+export interface TranslationOptions {
+  /** Most work (see `TranslationWork.created`) before the translation gives up; `TRANSLATION_BUDGET` by default. */
+  budget?: number
+  /** Polled every 1024 units of work; returning true ends the translation with reason 'stopped'. */
+  shouldStop?: () => boolean
+  /** Called at most every 100 ms with the work done so far. */
+  onProgress?: (created: number) => void
+  work?: TranslationWork
+}
+
+/** A translation that ended without an automaton: over budget, stopped, or needing too many acceptance sets. */
+export class TranslationAborted extends Error {
+  constructor(readonly reason: 'budget' | 'stopped' | 'acceptance', readonly created: number, readonly budget: number, message: string) {
+    super(message)
+    this.name = 'TranslationAborted'
+  }
+}
+
+class Budget {
+  created = 0
+  rawStates = 0
+  rawTransitions = 0
+  private polled = 0
+  private lastReport = Date.now()
+  readonly limit: number
+  constructor(private readonly opts: TranslationOptions) {
+    this.limit = opts.budget ?? TRANSLATION_BUDGET
+  }
+  spend(n: number): void {
+    this.created += n
+    if (this.created > this.limit) {
+      throw new TranslationAborted('budget', this.created, this.limit,
+        `the automaton of the property's negation needs more than the translation budget of ${this.limit} tableau nodes, states and transitions`)
+    }
+    if (this.created - this.polled >= 1024) {
+      this.polled = this.created
+      if (this.opts.shouldStop?.()) throw new TranslationAborted('stopped', this.created, this.limit, 'the translation was stopped')
+      if (this.opts.onProgress) {
+        const now = Date.now()
+        if (now - this.lastReport >= 100) { this.lastReport = now; this.opts.onProgress(this.created) }
+      }
+    }
+  }
+  report(): void {
+    if (!this.opts.work) return
+    this.opts.work.created = this.created
+    this.opts.work.rawStates = this.rawStates
+    this.opts.work.rawTransitions = this.rawTransitions
+  }
+}
+
+/** The letter row of a state for an automaton, from the state's atom words (`atomWord(w)`: atoms 32w..32w+31). */
+export function letterOf(aut: Automaton, atomWord: (word: number) => number, out: Uint32Array = new Uint32Array(aut.labelWords), at = 0): Uint32Array {
+  const W = aut.labelWords
+  out.fill(0, at, at + W)
+  if (!aut.predicates) {
+    for (let w = 0; w < W; w++) out[at + w] = atomWord(w) >>> 0
+  } else {
+    const ps = aut.predicates
+    for (let i = 0; i < ps.length; i++) if (stateHolds(ps[i], atomWord)) out[at + (i >>> 5)] |= 1 << (i & 31)
+  }
+  return out
+}
+
+/** Whether state q's label holds of the letter row `letter[at .. at + labelWords)`. */
+export function labelHoldsRow(aut: Automaton, q: number, letter: ArrayLike<number>, at = 0): boolean {
+  const W = aut.labelWords, mt = aut.mustTrue, mf = aut.mustFalse
+  for (let w = 0, o = q * W; w < W; w++, o++) {
+    const a = letter[at + w]
+    // xor rather than ===, so that bit 31 compares alike in signed and unsigned masks.
+    if ((((a & mt[o]) ^ mt[o]) | (a & mf[o])) !== 0) return false
+  }
+  return true
+}
+
+/**
+ * Whether state q's label holds of a state whose atoms are `atoms`: a mask of atoms 0..31, or a
+ * row of words (atom i is bit i % 32 of word i / 32). Predicates, if any, are evaluated on them.
+ */
+export function labelHolds(aut: Automaton, q: number, atoms: number | ArrayLike<number>): boolean {
+  const word = typeof atoms === 'number' ? (w: number) => (w === 0 ? atoms : 0) : (w: number) => (w < atoms.length ? atoms[w] : 0)
+  return labelHoldsRow(aut, q, letterOf(aut, word))
 }
 
 /** Acceptance marks of the transition from state `from` (to any successor): the sets `from` belongs to. */
@@ -52,19 +173,160 @@ export function allAcceptance(aut: Automaton): number {
   return aut.acceptanceSets === 0 ? 0 : (2 ** aut.acceptanceSets - 1) | 0
 }
 
-/** Translates `f` (simplified first, see `simplify`) to a reduced generalized Büchi automaton. */
-export function ltlToAutomaton(f: Ltl): Automaton {
-  return buildAutomaton(simplify(f))
+/**
+ * Translates `f` to a reduced generalized Büchi automaton: state predicates, simplification, the
+ * splits of the file comment, the tableau and the reductions. Throws `TranslationAborted` when
+ * the budget runs out, when stopped, or when more than 31 acceptance sets remain.
+ */
+export function ltlToAutomaton(f: Ltl, opts: TranslationOptions = {}): Automaton {
+  const { formula, predicates } = abstractStates(f)
+  const budget = new Budget(opts)
+  try {
+    const g = simplify(formula)
+    const letters = predicates ? predicates.length : atomCount(g)
+    const aut = reduce(translate(g, budget), letters, budget)
+    aut.atoms = atomCount(f)
+    if (predicates) aut.predicates = predicates
+    return aut
+  } finally {
+    budget.report()
+  }
 }
 
 /**
  * Translates a formula in negation normal form (see `nnf`) to a generalized Büchi automaton by
- * the tableau of Gerth, Peled, Vardi and Wolper (1995), then reduces it. Throws when the formula
- * is not in NNF or needs more than 31 acceptance sets after reduction.
+ * the tableau alone (no predicates, no splits), then reduces it. Throws when the formula is not
+ * in NNF, and `TranslationAborted` as `ltlToAutomaton` does.
  */
-export function buildAutomaton(f: Ltl): Automaton {
+export function buildAutomaton(f: Ltl, opts: TranslationOptions = {}): Automaton {
   if (!isNnf(f)) throw new Error('buildAutomaton expects a formula in negation normal form')
-  return reduce(tableau(f))
+  const budget = new Budget(opts)
+  try {
+    const aut = reduce(tableau(f, budget), atomCount(f), budget)
+    aut.atoms = atomCount(f)
+    return aut
+  } finally {
+    budget.report()
+  }
+}
+
+// ---- Splitting before the tableau -------------------------------------------------------------
+
+const isGFLiteral = (f: Ltl): boolean =>
+  f.op === 'release' && f.left.op === 'false' && f.right.op === 'until' && f.right.left.op === 'true' &&
+  (f.right.right.op === 'atom' || (f.right.right.op === 'not' && f.right.right.arg.op === 'atom'))
+
+function flatten(f: Ltl, op: 'and' | 'or', out: Ltl[] = []): Ltl[] {
+  if (f.op === op) { flatten(f.left, op, out); flatten(f.right, op, out) } else out.push(f)
+  return out
+}
+
+const isGAnd = (f: Ltl) => f.op === 'release' && f.left.op === 'false' && f.right.op === 'and'
+const mkG = (f: Ltl): Ltl => (f.op === 'release' && f.left.op === 'false' ? f : { op: 'release', left: { op: 'false' }, right: f })
+
+function translate(f: Ltl, budget: Budget): Raw {
+  if (f.op === 'or') {
+    const parts = flatten(f, 'or')
+    return parts.map((p) => translate(p, budget)).reduce((a, b) => union(a, b, budget))
+  }
+  if (f.op === 'and' || isGAnd(f)) {
+    // always (f and g) = always f and always g, so that every `always eventually l` is seen.
+    const parts = flatten(f, 'and').flatMap((p) => (isGAnd(p) ? flatten((p as { right: Ltl }).right, 'and').map((c) => mkG(c)) : [p]))
+    const gf = parts.filter(isGFLiteral)
+    if (gf.length >= 2) {
+      const block = gfBlock(gf.map((g) => literalBits((g as { right: { right: Ltl } }).right.right)), budget)
+      const rest = parts.filter((p) => !isGFLiteral(p))
+      if (rest.length === 0) return block
+      return intersect(translate(rest.reduce((a, b) => ({ op: 'and', left: a, right: b })), budget), block, budget)
+    }
+  }
+  return tableau(f, budget)
+}
+
+const bit = (atom: number) => 1n << BigInt(atom)
+
+function literalBits(l: Ltl): { pos: bigint; neg: bigint } {
+  if (l.op === 'atom') return { pos: bit(l.atom), neg: 0n }
+  if (l.op === 'not' && l.arg.op === 'atom') return { pos: 0n, neg: bit(l.arg.atom) }
+  throw new Error('expected a literal')
+}
+
+/**
+ * The automaton of `always eventually l_1 and ... and always eventually l_k`: state 0 reads any
+ * letter, state i reads l_i and is the only member of acceptance set i-1; every state is initial
+ * and leads to every state. An accepting run visits each state i infinitely often, so each l_i
+ * holds infinitely often; conversely, on such a word, a run can sit in state i at chosen positions
+ * where l_i holds, one i after another, and in state 0 elsewhere.
+ */
+function gfBlock(lits: { pos: bigint; neg: bigint }[], budget: Budget): Raw {
+  const n = lits.length + 1
+  budget.spend(n + n * n)
+  budget.rawStates += n
+  budget.rawTransitions += n * n
+  const all = Array.from({ length: n }, (_, i) => i)
+  return {
+    states: n,
+    initial: all.map(() => true),
+    pos: [0n, ...lits.map((l) => l.pos)],
+    neg: [0n, ...lits.map((l) => l.neg)],
+    succ: all.map(() => [...all]),
+    acceptance: lits.map((_, j) => all.map((q) => q === j + 1)),
+  }
+}
+
+/** Side by side: a run of the union is a run of one of them; each one's states are in every set of the other. */
+function union(a: Raw, b: Raw, budget: Budget): Raw {
+  budget.spend(a.states + b.states)
+  const n = a.states
+  return {
+    states: a.states + b.states,
+    initial: [...a.initial, ...b.initial],
+    pos: [...a.pos, ...b.pos],
+    neg: [...a.neg, ...b.neg],
+    succ: [...a.succ, ...b.succ.map((rs) => rs.map((r) => r + n))],
+    acceptance: [
+      ...a.acceptance.map((s) => [...s, ...b.pos.map(() => true)]),
+      ...b.acceptance.map((s) => [...a.pos.map(() => true), ...s]),
+    ],
+  }
+}
+
+/** The synchronous product (the intersection of the languages): pairs of states whose labels agree, both automata's sets. */
+function intersect(a: Raw, b: Raw, budget: Budget): Raw {
+  const ids = new Map<number, number>()
+  const pairs: [number, number][] = []
+  const pos: bigint[] = [], neg: bigint[] = []
+  const agree = (x: number, y: number) => (a.pos[x] & b.neg[y]) === 0n && (a.neg[x] & b.pos[y]) === 0n
+  const id = (x: number, y: number) => {
+    const k = x * b.states + y
+    let i = ids.get(k)
+    if (i === undefined) {
+      budget.spend(1)
+      i = pairs.length
+      ids.set(k, i)
+      pairs.push([x, y])
+      pos.push(a.pos[x] | b.pos[y])
+      neg.push(a.neg[x] | b.neg[y])
+    }
+    return i
+  }
+  const initial: number[] = []
+  for (let x = 0; x < a.states; x++) if (a.initial[x]) for (let y = 0; y < b.states; y++) if (b.initial[y] && agree(x, y)) initial.push(id(x, y))
+  const succ: number[][] = []
+  for (let i = 0; i < pairs.length; i++) {
+    const [x, y] = pairs[i]
+    const out: number[] = []
+    for (const x2 of a.succ[x]) for (const y2 of b.succ[y]) if (agree(x2, y2)) { budget.spend(1); out.push(id(x2, y2)) }
+    succ.push(out)
+  }
+  budget.rawStates += pairs.length
+  budget.rawTransitions += succ.reduce((t, o) => t + o.length, 0)
+  const init = new Array<boolean>(pairs.length).fill(false)
+  for (const i of initial) init[i] = true
+  return {
+    states: pairs.length, initial: init, pos, neg, succ,
+    acceptance: [...a.acceptance.map((s) => pairs.map(([x]) => s[x])), ...b.acceptance.map((s) => pairs.map(([, y]) => s[y]))],
+  }
 }
 
 // ---- The tableau ----------------------------------------------------------------------------
@@ -85,129 +347,156 @@ class Closure {
   }
 }
 
-/** A node under expansion: GPVW's Incoming, New, Old and Next, with Old's literals also as masks. */
-interface Pending {
-  incoming: number[]
-  todo: number[]
-  old: Set<number>
-  next: Set<number>
-  pos: number
-  neg: number
-}
-
-/** A finished tableau node: a state of the unreduced automaton. */
-interface TableauState {
-  incoming: Set<number>
-  old: Set<number>
-  pos: number
-  neg: number
+/**
+ * One way to meet a set of obligations now: the letter literals it reads, the obligations it
+ * passes to the next position, and the `until`s it promises without fulfilling them now. Sets of
+ * subformulas are bit rows over closure numbers.
+ */
+interface Node {
+  pos: bigint
+  neg: bigint
+  /** Closure numbers of the `until`s postponed (the tableau's `next f U g` branch). */
+  miss: bigint
+  /** Closure numbers owed at the next position. */
+  next: bigint
 }
 
 interface Raw {
   states: number
   initial: boolean[]
-  pos: number[]
-  neg: number[]
+  pos: bigint[]
+  neg: bigint[]
   succ: number[][]
   /** acceptance[j][q]: state q is in set j. */
   acceptance: boolean[][]
 }
 
-const INIT = -1
+const subset = (a: bigint, b: bigint) => (a & ~b) === 0n
+const nodeKey = (x: Node) => `${x.pos}|${x.neg}|${x.miss}|${x.next}`
 
-function tableau(f: Ltl): Raw {
+/**
+ * Drops every node that another stands in for: a weaker (or equal) label, a subset of the next
+ * obligations and of the postponed promises. Replacing the first by the second in a run keeps
+ * the word read, owes less afterwards and fulfils at least as often, so the language is kept;
+ * and the order is strict on distinct nodes, so the nodes kept stand in for all the others.
+ */
+function prune(xs: Node[], budget: Budget): Node[] {
+  const distinct = [...new Map(xs.map((x) => [nodeKey(x), x])).values()]
+  budget.spend(distinct.length)
+  if (distinct.length > 2000) return distinct
+  return distinct.filter((x) => !distinct.some((y) => y !== x &&
+    subset(y.pos, x.pos) && subset(y.neg, x.neg) && subset(y.miss, x.miss) && subset(y.next, x.next)))
+}
+
+/** Both at once: every pair whose literals agree, with everything of both. */
+function conjoin(a: Node[], b: Node[], budget: Budget): Node[] {
+  const out: Node[] = []
+  for (const x of a) {
+    for (const y of b) {
+      budget.spend(1)
+      if ((x.pos & y.neg) !== 0n || (x.neg & y.pos) !== 0n) continue
+      out.push({ pos: x.pos | y.pos, neg: x.neg | y.neg, miss: x.miss | y.miss, next: x.next | y.next })
+    }
+  }
+  return prune(out, budget)
+}
+
+/**
+ * The tableau of Gerth, Peled, Vardi and Wolper, with each set of obligations expanded once and
+ * compositionally: the ways to meet `f and g` are the agreeing pairs of ways to meet f and g, the
+ * ways to meet `f or g` those of either, and GPVW's rules for the rest (f until g: g now, or f
+ * now and f until g next, postponed; f release g: f and g now, or g now and f release g next), as
+ * the transitions of an alternating automaton are combined in Gastin and Oddoux (CAV 2001,
+ * Sect. 2 and 3). The ways are kept pruned (`prune`) at every step. A state of the result is a
+ * way (label, postponed untils, next obligations); its successors are the ways of its next
+ * obligations. A state is in the acceptance set of `f until g` unless it postpones it.
+ */
+function tableau(f: Ltl, budget: Budget): Raw {
   const cl = new Closure()
-  const root = cl.id(f)
-  const done: TableauState[] = []
-  const byContents = new Map<string, number>()
-  const setKey = (s: Set<number>) => [...s].sort((a, b) => a - b).join(',')
-  const work: Pending[] = [{ incoming: [INIT], todo: [root], old: new Set(), next: new Set(), pos: 0, neg: 0 }]
-
-  // GPVW's recursive `expand`, with the recursion replaced by a work list: a split pushes its
-  // second node and continues with the first.
-  nodes: while (work.length > 0) {
-    const n = work.pop()!
-    for (;;) {
-      if (n.todo.length === 0) {
-        const k = setKey(n.old) + '|' + setKey(n.next)
-        const same = byContents.get(k)
-        if (same !== undefined) {
-          for (const i of n.incoming) done[same].incoming.add(i)
-        } else {
-          const id = done.length
-          done.push({ incoming: new Set(n.incoming), old: n.old, pos: n.pos, neg: n.neg })
-          byContents.set(k, id)
-          work.push({ incoming: [id], todo: [...n.next], old: new Set(), next: new Set(), pos: 0, neg: 0 })
-        }
-        continue nodes
+  const one = (i: number) => 1n << BigInt(i)
+  const ways = new Map<number, Node[]>()
+  const untils = new Set<number>()
+  const waysOf = (i: number): Node[] => {
+    let w = ways.get(i)
+    if (w !== undefined) return w
+    const g = cl.formulas[i]
+    switch (g.op) {
+      case 'true': w = [{ pos: 0n, neg: 0n, miss: 0n, next: 0n }]; break
+      case 'false': w = []; break
+      case 'atom': w = [{ pos: bit(g.atom), neg: 0n, miss: 0n, next: 0n }]; break
+      case 'not': w = [{ pos: 0n, neg: bit((g.arg as { atom: number }).atom), miss: 0n, next: 0n }]; break
+      case 'next': w = [{ pos: 0n, neg: 0n, miss: 0n, next: one(cl.id(g.arg)) }]; break
+      case 'and': w = conjoin(waysOf(cl.id(g.left)), waysOf(cl.id(g.right)), budget); break
+      case 'or': w = prune([...waysOf(cl.id(g.left)), ...waysOf(cl.id(g.right))], budget); break
+      case 'until':
+        untils.add(i)
+        w = prune([...waysOf(cl.id(g.right)), ...conjoin(waysOf(cl.id(g.left)), [{ pos: 0n, neg: 0n, miss: one(i), next: one(i) }], budget)], budget)
+        break
+      case 'release': {
+        const r = waysOf(cl.id(g.right))
+        w = prune([...conjoin(waysOf(cl.id(g.left)), r, budget), ...conjoin(r, [{ pos: 0n, neg: 0n, miss: 0n, next: one(i) }], budget)], budget)
+        break
       }
-      const eta = n.todo.pop()!
-      if (n.old.has(eta)) continue
-      const g = cl.formulas[eta]
-      switch (g.op) {
-        case 'false': continue nodes // contradiction: the node is dropped
-        case 'true': n.old.add(eta); break
-        case 'atom': {
-          const bit = 1 << g.atom
-          if (n.neg & bit) continue nodes
-          n.pos |= bit
-          n.old.add(eta)
-          break
-        }
-        case 'not': {
-          const bit = 1 << (g.arg as { atom: number }).atom
-          if (n.pos & bit) continue nodes
-          n.neg |= bit
-          n.old.add(eta)
-          break
-        }
-        case 'and':
-          n.old.add(eta)
-          n.todo.push(cl.id(g.left), cl.id(g.right))
-          break
-        case 'next':
-          n.old.add(eta)
-          n.next.add(cl.id(g.arg))
-          break
-        case 'or': case 'until': case 'release': {
-          const l = cl.id(g.left), r = cl.id(g.right)
-          n.old.add(eta)
-          const other: Pending = { incoming: n.incoming, todo: [...n.todo], old: new Set(n.old), next: new Set(n.next), pos: n.pos, neg: n.neg }
-          // or:          {left}           | {right}
-          // f until g:   {f}, next f U g  | {g}
-          // f release g: {g}, next f R g  | {f, g}
-          if (g.op === 'or') { n.todo.push(l); other.todo.push(r) }
-          else if (g.op === 'until') { n.todo.push(l); n.next.add(eta); other.todo.push(r) }
-          else { n.todo.push(r); n.next.add(eta); other.todo.push(l, r) }
-          work.push(other)
-          break
-        }
-        default: throw new Error(`unexpected '${g.op}' in negation normal form`)
-      }
+      default: throw new Error(`unexpected '${g.op}' in negation normal form`)
     }
+    budget.spend(w.length)
+    ways.set(i, w)
+    return w
+  }
+  // A set of obligations, normalised: φ is dropped when `ψ release φ` is owed too (it requires φ now).
+  const normal = (set: bigint): bigint => {
+    let out = set
+    for (let i = 0; one(i) <= set; i++) {
+      if ((set & one(i)) === 0n) continue
+      const g = cl.formulas[i]
+      if (g.op === 'true') out &= ~one(i)
+      else if (g.op === 'release') out &= ~one(cl.id(g.right))
+    }
+    return out
+  }
+  const expansions = new Map<bigint, Node[]>()
+  const expand = (set: bigint): Node[] => {
+    let w = expansions.get(set)
+    if (w !== undefined) return w
+    w = [{ pos: 0n, neg: 0n, miss: 0n, next: 0n }]
+    for (let i = 0; one(i) <= set; i++) if ((set & one(i)) !== 0n) w = conjoin(w, waysOf(i), budget)
+    w = w.map((x) => ({ ...x, next: normal(x.next) }))
+    expansions.set(set, w)
+    return w
   }
 
-  const m = done.length
-  const initial = new Array<boolean>(m).fill(false)
-  const succ: number[][] = Array.from({ length: m }, () => [])
-  for (let q = 0; q < m; q++) {
-    for (const i of done[q].incoming) {
-      if (i === INIT) initial[q] = true
-      else succ[i].push(q)
-    }
+  const stateIds = new Map<string, number>()
+  const states: Node[] = []
+  const stateOf = (x: Node) => {
+    const k = nodeKey(x)
+    let q = stateIds.get(k)
+    if (q === undefined) { budget.spend(1); q = states.length; states.push(x); stateIds.set(k, q) }
+    return q
   }
-  const acceptance: boolean[][] = []
-  cl.formulas.forEach((g, id) => {
-    if (g.op !== 'until') return
-    const r = cl.id(g.right)
-    acceptance.push(done.map((s) => !s.old.has(id) || s.old.has(r)))
-  })
-  return { states: m, initial, pos: done.map((s) => s.pos), neg: done.map((s) => s.neg), succ, acceptance }
+  const initial = new Set(expand(normal(one(cl.id(f)))).map(stateOf))
+  const succ: number[][] = []
+  for (let q = 0; q < states.length; q++) {
+    const out = expand(states[q].next).map(stateOf)
+    budget.spend(out.length)
+    succ.push(out)
+  }
+  const m = states.length
+  budget.rawStates += m
+  budget.rawTransitions += succ.reduce((a, s) => a + s.length, 0)
+  const order = [...untils].sort((a, b) => a - b)
+  return {
+    states: m,
+    initial: states.map((_, q) => initial.has(q)),
+    pos: states.map((x) => x.pos),
+    neg: states.map((x) => x.neg),
+    succ,
+    acceptance: order.map((u) => states.map((x) => (x.miss & one(u)) === 0n)),
+  }
 }
 
 // ---- Reductions -----------------------------------------------------------------------------
 
-function reduce(raw: Raw): Automaton {
+function reduce(raw: Raw, letters: number, budget: Budget): Automaton {
   const { keep, transient } = usefulStates(raw)
   const ids = new Int32Array(raw.states).fill(-1)
   const kept: number[] = []
@@ -216,24 +505,33 @@ function reduce(raw: Raw): Automaton {
   // Acceptance sets over the states that remain: drop the sets every state is in, duplicates, and
   // the strict supersets of another set (visiting the subset infinitely often visits the superset).
   const sets0 = raw.acceptance.map((s) => kept.map((q) => s[q])).filter((s) => s.some((x) => !x))
+  budget.spend(sets0.length * sets0.length)
   const distinct = [...new Map(sets0.map((s) => [s.map(Number).join(''), s])).values()]
   const sets = distinct.filter((s) => !distinct.some((t) => t !== s && t.every((x, i) => !x || s[i])))
-  if (sets.length > 31) throw new Error(`the formula needs ${sets.length} acceptance sets; at most 31 are supported`)
+  if (sets.length > 31) {
+    throw new TranslationAborted('acceptance', budget.created, budget.limit,
+      `the automaton of the property's negation needs ${sets.length} acceptance sets; at most 31 are supported`)
+  }
 
   const n = kept.length
-  const pos = kept.map((q) => raw.pos[q] >>> 0)
-  const neg = kept.map((q) => raw.neg[q] >>> 0)
+  const pos = kept.map((q) => raw.pos[q])
+  const neg = kept.map((q) => raw.neg[q])
   const acc = kept.map((_, i) => sets.reduce((a, s, j) => (s[i] ? a | (1 << j) : a), 0))
   const succ = kept.map((q) => raw.succ[q].filter((r) => keep[r]).map((r) => ids[r]))
   const initial = kept.map((q) => raw.initial[q])
-  removeLittleBrothers(initial, kept.map((q) => transient[q]), pos, neg, acc, succ)
+  const edgeCount = succ.reduce((a, s) => a + s.length, 0)
+  // An optimisation only: skipped when its pairwise comparison would cost more than the rest.
+  if (n <= 600) {
+    budget.spend(n * n)
+    removeLittleBrothers(initial, kept.map((q) => transient[q]), pos, neg, acc, succ)
+  }
 
-  // Coarsest bisimulation respecting label and acceptance, by naive partition refinement: the
-  // automata are small. Bisimilar states accept the same words from there, so merging them keeps
-  // the language.
+  // Coarsest bisimulation respecting label and acceptance, by naive partition refinement.
+  // Bisimilar states accept the same words from there, so merging them keeps the language.
   let block = new Int32Array(n)
   let blocks = renumber(block, kept.map((_, i) => `${pos[i]}/${neg[i]}/${acc[i]}`))
   for (;;) {
+    budget.spend(n + edgeCount)
     const sig = kept.map((_, i) => `${block[i]}:${[...new Set(succ[i].map((r) => block[r]))].sort((a, b) => a - b).join(',')}`)
     const next = new Int32Array(n)
     const count = renumber(next, sig)
@@ -257,14 +555,17 @@ function reduce(raw: Raw): Automaton {
     }
   }
   const m = queue.length
+  const W = Math.max(1, Math.ceil(letters / 32))
   const edges: [number, number][] = []
   const out = {
-    mustTrue: new Uint32Array(m), mustFalse: new Uint32Array(m), accept: new Uint32Array(m),
+    mustTrue: new Uint32Array(m * W), mustFalse: new Uint32Array(m * W), accept: new Uint32Array(m),
   }
   for (let s = 0; s < m; s++) {
     const i = rep[queue[s]]
-    out.mustTrue[s] = pos[i]
-    out.mustFalse[s] = neg[i]
+    for (let w = 0; w < W; w++) {
+      out.mustTrue[s * W + w] = Number((pos[i] >> BigInt(32 * w)) & 0xffffffffn)
+      out.mustFalse[s * W + w] = Number((neg[i] >> BigInt(32 * w)) & 0xffffffffn)
+    }
     out.accept[s] = acc[i]
     for (const r of [...new Set(succ[i].map((x) => order[block[x]]))].sort((a, b) => a - b)) edges.push([s, r])
   }
@@ -272,12 +573,14 @@ function reduce(raw: Raw): Automaton {
   return {
     states: m,
     initial: Int32Array.from([...initialBlocks].map((b) => order[b]).sort((a, b) => a - b)),
+    labelWords: W,
     mustTrue: out.mustTrue,
     mustFalse: out.mustFalse,
     succStart: csr.start,
     succ: csr.adj,
     accept: out.accept,
     acceptanceSets: sets.length,
+    atoms: 0,
   }
 }
 
@@ -289,15 +592,18 @@ function reduce(raw: Raw): Automaton {
  * language is kept. A removed state keeps no edges and is not initial; the bisimulation quotient
  * then drops it as unreachable.
  */
-function removeLittleBrothers(initial: boolean[], transient: boolean[], pos: number[], neg: number[], acc: number[], succ: number[][]): void {
+function removeLittleBrothers(initial: boolean[], transient: boolean[], pos: bigint[], neg: bigint[], acc: number[], succ: number[][]): void {
   const n = initial.length
   const alive = new Array<boolean>(n).fill(true)
+  const out = succ.map((rs) => new Set(rs))
+  const into: Set<number>[] = Array.from({ length: n }, () => new Set())
+  succ.forEach((rs, u) => rs.forEach((v) => into[v].add(u)))
   const covers = (y: number, x: number) => {
-    if ((pos[y] & ~pos[x]) !== 0 || (neg[y] & ~neg[x]) !== 0) return false
+    if ((pos[y] & ~pos[x]) !== 0n || (neg[y] & ~neg[x]) !== 0n) return false
     if (!transient[x] && (acc[x] & ~acc[y]) !== 0) return false
     if (initial[x] && !initial[y]) return false
-    for (const v of succ[x]) if (!succ[y].includes(v === x ? y : v)) return false
-    for (let u = 0; u < n; u++) if (alive[u] && u !== x && succ[u].includes(x) && !succ[u].includes(y)) return false
+    for (const v of out[x]) if (!out[y].has(v === x ? y : v)) return false
+    for (const u of into[x]) if (u !== x && !out[u].has(y)) return false
     return true
   }
   for (let changed = true; changed;) {
@@ -309,11 +615,14 @@ function removeLittleBrothers(initial: boolean[], transient: boolean[], pos: num
       if (y === n) continue
       alive[x] = false
       initial[x] = false
-      succ[x] = []
-      for (let u = 0; u < n; u++) succ[u] = succ[u].filter((v) => v !== x)
+      for (const v of out[x]) into[v].delete(x)
+      for (const u of into[x]) out[u].delete(x)
+      out[x].clear()
+      into[x].clear()
       changed = true
     }
   }
+  for (let u = 0; u < n; u++) succ[u] = succ[u].filter((v) => out[u].has(v))
 }
 
 /** Gives equal signatures equal block numbers 0..k-1 (in order of first appearance); returns k. */
@@ -361,9 +670,11 @@ export function showAutomaton(aut: Automaton, name: (atom: number) => string = (
   const init = new Set(aut.initial)
   for (let q = 0; q < aut.states; q++) {
     const lits: string[] = []
-    for (let a = 0; a < 32; a++) {
-      if ((aut.mustTrue[q] >>> a) & 1) lits.push(name(a))
-      if ((aut.mustFalse[q] >>> a) & 1) lits.push(`not ${name(a)}`)
+    const W = aut.labelWords
+    const letter = (a: number) => (aut.predicates ? `[${aut.predicates[a] ? show(aut.predicates[a], name) : a}]` : name(a))
+    for (let a = 0; a < 32 * W; a++) {
+      if ((aut.mustTrue[q * W + (a >>> 5)] >>> (a & 31)) & 1) lits.push(letter(a))
+      if ((aut.mustFalse[q * W + (a >>> 5)] >>> (a & 31)) & 1) lits.push(`not ${letter(a)}`)
     }
     const sets: number[] = []
     for (let j = 0; j < aut.acceptanceSets; j++) if ((aut.accept[q] >>> j) & 1) sets.push(j)

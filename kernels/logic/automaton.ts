@@ -67,7 +67,7 @@ export interface Automaton {
 }
 
 /** Default budget of one translation: nodes expanded plus states and transitions created. */
-export const TRANSLATION_BUDGET = 200_000
+export const TRANSLATION_BUDGET = 1_500_000
 
 /** Work counters of one translation (filled in when passed as `TranslationOptions.work`). */
 export interface TranslationWork {
@@ -348,17 +348,13 @@ class Closure {
 }
 
 /**
- * One way to meet a set of obligations now: the letter literals it reads, the obligations it
- * passes to the next position, and the `until`s it promises without fulfilling them now. Sets of
- * subformulas are bit rows over closure numbers.
+ * One way to meet a set of obligations now: the letter literals it reads, the `until`s it
+ * postpones (promises without fulfilling them now) and the obligations it passes to the next
+ * position. All four are bit rows in one word array, laid out by `Layout`; `pop` counts its bits.
  */
 interface Node {
-  pos: bigint
-  neg: bigint
-  /** Closure numbers of the `until`s postponed (the tableau's `next f U g` branch). */
-  miss: bigint
-  /** Closure numbers owed at the next position. */
-  next: bigint
+  w: Uint32Array
+  pop: number
 }
 
 interface Raw {
@@ -371,8 +367,47 @@ interface Raw {
   acceptance: boolean[][]
 }
 
-const subset = (a: bigint, b: bigint) => (a & ~b) === 0n
-const nodeKey = (x: Node) => `${x.pos}|${x.neg}|${x.miss}|${x.next}`
+/** Word offsets of a node's rows: literals that hold, that do not hold (LW words each), postponed untils, next obligations (CW words each). */
+class Layout {
+  readonly len: number
+  readonly neg: number
+  readonly miss: number
+  readonly next: number
+  constructor(readonly LW: number, readonly CW: number) {
+    this.neg = LW
+    this.miss = 2 * LW
+    this.next = 2 * LW + CW
+    this.len = 2 * LW + 2 * CW
+  }
+  node(set: (w: Uint32Array) => void): Node {
+    const w = new Uint32Array(this.len)
+    set(w)
+    return { w, pop: popcount(w) }
+  }
+}
+
+function popcount(w: Uint32Array): number {
+  let c = 0
+  for (let i = 0; i < w.length; i++) {
+    let v = w[i] - ((w[i] >>> 1) & 0x55555555)
+    v = (v & 0x33333333) + ((v >>> 2) & 0x33333333)
+    c += (((v + (v >>> 4)) & 0xf0f0f0f) * 0x1010101) >>> 24
+  }
+  return c
+}
+
+const rowKey = (w: Uint32Array, from = 0, to = w.length) => {
+  let k = ''
+  for (let i = from; i < to; i++) k += w[i].toString(36) + ','
+  return k
+}
+const setBit = (w: Uint32Array, at: number, i: number) => { w[at + (i >>> 5)] |= 1 << (i & 31) }
+const hasBit = (w: Uint32Array, at: number, i: number) => ((w[at + (i >>> 5)] >>> (i & 31)) & 1) === 1
+const rowBigint = (w: Uint32Array, at: number, n: number) => {
+  let b = 0n
+  for (let i = n - 1; i >= 0; i--) b = (b << 32n) | BigInt(w[at + i])
+  return b
+}
 
 /**
  * Drops every node that another stands in for: a weaker (or equal) label, a subset of the next
@@ -381,21 +416,43 @@ const nodeKey = (x: Node) => `${x.pos}|${x.neg}|${x.miss}|${x.next}`
  * and the order is strict on distinct nodes, so the nodes kept stand in for all the others.
  */
 function prune(xs: Node[], budget: Budget): Node[] {
-  const distinct = [...new Map(xs.map((x) => [nodeKey(x), x])).values()]
+  const distinct = [...new Map(xs.map((x) => [rowKey(x.w), x])).values()]
   budget.spend(distinct.length)
-  if (distinct.length > 2000) return distinct
-  return distinct.filter((x) => !distinct.some((y) => y !== x &&
-    subset(y.pos, x.pos) && subset(y.neg, x.neg) && subset(y.miss, x.miss) && subset(y.next, x.next)))
+  if (distinct.length > 4000) return distinct
+  // A node that stands in for x has no more bits than x: try those first, stop at the first.
+  distinct.sort((a, b) => a.pop - b.pop)
+  const kept: Node[] = []
+  for (const x of distinct) {
+    const xw = x.w
+    let dominated = false
+    for (const y of kept) {
+      if (y.pop >= x.pop) break
+      const yw = y.w
+      let inside = true
+      for (let i = 0; i < yw.length; i++) if ((yw[i] & ~xw[i]) !== 0) { inside = false; break }
+      if (inside) { dominated = true; break }
+    }
+    if (!dominated) {
+      // keep `kept` sorted by pop (distinct is, so pushing keeps it)
+      kept.push(x)
+    }
+  }
+  return kept
 }
 
 /** Both at once: every pair whose literals agree, with everything of both. */
-function conjoin(a: Node[], b: Node[], budget: Budget): Node[] {
+function conjoin(L: Layout, a: Node[], b: Node[], budget: Budget): Node[] {
   const out: Node[] = []
+  const LW = L.LW
   for (const x of a) {
-    for (const y of b) {
+    const xw = x.w
+    next: for (const y of b) {
       budget.spend(1)
-      if ((x.pos & y.neg) !== 0n || (x.neg & y.pos) !== 0n) continue
-      out.push({ pos: x.pos | y.pos, neg: x.neg | y.neg, miss: x.miss | y.miss, next: x.next | y.next })
+      const yw = y.w
+      for (let i = 0; i < LW; i++) if ((xw[i] & yw[LW + i]) !== 0 || (xw[LW + i] & yw[i]) !== 0) continue next
+      const w = new Uint32Array(L.len)
+      for (let i = 0; i < w.length; i++) w[i] = xw[i] | yw[i]
+      out.push({ w, pop: popcount(w) })
     }
   }
   return prune(out, budget)
@@ -413,28 +470,32 @@ function conjoin(a: Node[], b: Node[], budget: Budget): Node[] {
  */
 function tableau(f: Ltl, budget: Budget): Raw {
   const cl = new Closure()
-  const one = (i: number) => 1n << BigInt(i)
+  const visit = (g: Ltl): void => { cl.id(g); if ('arg' in g) visit(g.arg); else if ('left' in g) { visit(g.left); visit(g.right) } }
+  visit(f)
+  const letters = atomCount(f)
+  const L = new Layout(Math.max(1, Math.ceil(letters / 32)), Math.max(1, Math.ceil(cl.formulas.length / 32)))
   const ways = new Map<number, Node[]>()
   const untils = new Set<number>()
+  const TOP = L.node(() => {})
   const waysOf = (i: number): Node[] => {
     let w = ways.get(i)
     if (w !== undefined) return w
     const g = cl.formulas[i]
     switch (g.op) {
-      case 'true': w = [{ pos: 0n, neg: 0n, miss: 0n, next: 0n }]; break
+      case 'true': w = [TOP]; break
       case 'false': w = []; break
-      case 'atom': w = [{ pos: bit(g.atom), neg: 0n, miss: 0n, next: 0n }]; break
-      case 'not': w = [{ pos: 0n, neg: bit((g.arg as { atom: number }).atom), miss: 0n, next: 0n }]; break
-      case 'next': w = [{ pos: 0n, neg: 0n, miss: 0n, next: one(cl.id(g.arg)) }]; break
-      case 'and': w = conjoin(waysOf(cl.id(g.left)), waysOf(cl.id(g.right)), budget); break
+      case 'atom': { const a = g.atom; w = [L.node((r) => setBit(r, 0, a))]; break }
+      case 'not': { const a = (g.arg as { atom: number }).atom; w = [L.node((r) => setBit(r, L.neg, a))]; break }
+      case 'next': { const n = cl.id(g.arg); w = [L.node((r) => setBit(r, L.next, n))]; break }
+      case 'and': w = conjoin(L, waysOf(cl.id(g.left)), waysOf(cl.id(g.right)), budget); break
       case 'or': w = prune([...waysOf(cl.id(g.left)), ...waysOf(cl.id(g.right))], budget); break
       case 'until':
         untils.add(i)
-        w = prune([...waysOf(cl.id(g.right)), ...conjoin(waysOf(cl.id(g.left)), [{ pos: 0n, neg: 0n, miss: one(i), next: one(i) }], budget)], budget)
+        w = prune([...waysOf(cl.id(g.right)), ...conjoin(L, waysOf(cl.id(g.left)), [L.node((r) => { setBit(r, L.miss, i); setBit(r, L.next, i) })], budget)], budget)
         break
       case 'release': {
         const r = waysOf(cl.id(g.right))
-        w = prune([...conjoin(waysOf(cl.id(g.left)), r, budget), ...conjoin(r, [{ pos: 0n, neg: 0n, miss: 0n, next: one(i) }], budget)], budget)
+        w = prune([...conjoin(L, waysOf(cl.id(g.left)), r, budget), ...conjoin(L, r, [L.node((x) => setBit(x, L.next, i))], budget)], budget)
         break
       }
       default: throw new Error(`unexpected '${g.op}' in negation normal form`)
@@ -443,40 +504,46 @@ function tableau(f: Ltl, budget: Budget): Raw {
     ways.set(i, w)
     return w
   }
-  // A set of obligations, normalised: φ is dropped when `ψ release φ` is owed too (it requires φ now).
-  const normal = (set: bigint): bigint => {
-    let out = set
-    for (let i = 0; one(i) <= set; i++) {
-      if ((set & one(i)) === 0n) continue
+  // A set of obligations (the next row of a node), normalised in place: `true` is dropped, and so
+  // is φ when `ψ release φ` is owed too (which requires φ now).
+  const normalise = (w: Uint32Array): void => {
+    for (let i = 0; i < cl.formulas.length; i++) {
+      if (!hasBit(w, L.next, i)) continue
       const g = cl.formulas[i]
-      if (g.op === 'true') out &= ~one(i)
-      else if (g.op === 'release') out &= ~one(cl.id(g.right))
+      if (g.op === 'true') w[L.next + (i >>> 5)] &= ~(1 << (i & 31))
     }
-    return out
+    for (let i = 0; i < cl.formulas.length; i++) {
+      if (!hasBit(w, L.next, i)) continue
+      const g = cl.formulas[i]
+      if (g.op === 'release') { const r = cl.id(g.right); w[L.next + (r >>> 5)] &= ~(1 << (r & 31)) }
+    }
   }
-  const expansions = new Map<bigint, Node[]>()
-  const expand = (set: bigint): Node[] => {
-    let w = expansions.get(set)
+  const expansions = new Map<string, Node[]>()
+  const expand = (x: Node): Node[] => {
+    const k = rowKey(x.w, L.next, L.len)
+    let w = expansions.get(k)
     if (w !== undefined) return w
-    w = [{ pos: 0n, neg: 0n, miss: 0n, next: 0n }]
-    for (let i = 0; one(i) <= set; i++) if ((set & one(i)) !== 0n) w = conjoin(w, waysOf(i), budget)
-    w = w.map((x) => ({ ...x, next: normal(x.next) }))
-    expansions.set(set, w)
+    w = [TOP]
+    for (let i = 0; i < cl.formulas.length; i++) if (hasBit(x.w, L.next, i)) w = conjoin(L, w, waysOf(i), budget)
+    w = w.map((y) => { const c = y.w.slice(); normalise(c); return { w: c, pop: popcount(c) } })
+    expansions.set(k, w)
     return w
   }
 
   const stateIds = new Map<string, number>()
   const states: Node[] = []
   const stateOf = (x: Node) => {
-    const k = nodeKey(x)
+    const k = rowKey(x.w)
     let q = stateIds.get(k)
     if (q === undefined) { budget.spend(1); q = states.length; states.push(x); stateIds.set(k, q) }
     return q
   }
-  const initial = new Set(expand(normal(one(cl.id(f)))).map(stateOf))
+  const root = L.node((r) => setBit(r, L.next, cl.id(f)))
+  normalise(root.w)
+  const initial = new Set(expand(root).map(stateOf))
   const succ: number[][] = []
   for (let q = 0; q < states.length; q++) {
-    const out = expand(states[q].next).map(stateOf)
+    const out = expand(states[q]).map(stateOf)
     budget.spend(out.length)
     succ.push(out)
   }
@@ -487,10 +554,10 @@ function tableau(f: Ltl, budget: Budget): Raw {
   return {
     states: m,
     initial: states.map((_, q) => initial.has(q)),
-    pos: states.map((x) => x.pos),
-    neg: states.map((x) => x.neg),
+    pos: states.map((x) => rowBigint(x.w, 0, L.LW)),
+    neg: states.map((x) => rowBigint(x.w, L.neg, L.LW)),
     succ,
-    acceptance: order.map((u) => states.map((x) => (x.miss & one(u)) === 0n)),
+    acceptance: order.map((u) => states.map((x) => !hasBit(x.w, L.miss, u))),
   }
 }
 

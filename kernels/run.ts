@@ -342,7 +342,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
         if (nodes > limit * 8) stoppedByLimit = true
         report()
       },
-      translation: { onProgress: report },
+      translation: { onProgress: report, budget: opts.translationBudget },
     })
     productNodes = Math.max(productNodes, v.nodes)
     if (v.stopped || stoppedByLimit) {

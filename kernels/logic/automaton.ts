@@ -14,8 +14,9 @@
 //   two small automata instead of the product the tableau would build;
 // - the conjuncts `always eventually p` of a conjunction, p a letter or its negation, become one
 //   automaton of k+1 states for k of them (one state per p, in its own acceptance set, and one
-//   waiting state; every state leads to every state), intersected with the automaton of the
-//   other conjuncts; the tableau would build 2^k states.
+//   waiting state; every state leads to every state), or for more than 12 of them one of 2k states
+//   with a single acceptance set that waits for each p in turn, intersected with the automaton of
+//   the other conjuncts; the tableau would build 2^k states.
 // The tableau itself expands each set of obligations (GPVW's Next) once and keys its states by
 // (label, unfulfilled promises, next obligations), so two nodes that differ only in the
 // bookkeeping of Old are one state. Within the expansion of one set, a node is dropped when
@@ -259,6 +260,7 @@ function literalBits(l: Ltl): { pos: bigint; neg: bigint } {
  * where l_i holds, one i after another, and in state 0 elsewhere.
  */
 function gfBlock(lits: { pos: bigint; neg: bigint }[], budget: Budget): Raw {
+  if (lits.length > GF_SETS) return gfRound(lits, budget)
   const n = lits.length + 1
   budget.spend(n + n * n)
   budget.rawStates += n
@@ -271,6 +273,38 @@ function gfBlock(lits: { pos: bigint; neg: bigint }[], budget: Budget): Raw {
     neg: [0n, ...lits.map((l) => l.neg)],
     succ: all.map(() => [...all]),
     acceptance: lits.map((_, j) => all.map((q) => q === j + 1)),
+  }
+}
+
+/** Above this many `always eventually` conjuncts, `gfRound` (one acceptance set) replaces `gfBlock`'s set per conjunct. */
+const GF_SETS = 12
+
+/**
+ * `always eventually l_1 and ... and always eventually l_k` with one acceptance set, for many
+ * conjuncts (each set is a mark of the product, and it has 31): state w_i waits for l_i (any
+ * letter), h_i reads l_i; w_i leads to w_i and h_i, h_i to w_(i+1) and h_(i+1) (cyclically); w_1
+ * and h_1 are initial; the set is {h_k}. An accepting run passes h_1, ..., h_k in turn infinitely
+ * often, so each l_i holds infinitely often; conversely, on such a word a run waits in w_i for
+ * the next position where l_i holds, reads it in h_i and moves on to i + 1.
+ */
+function gfRound(lits: { pos: bigint; neg: bigint }[], budget: Budget): Raw {
+  const k = lits.length
+  budget.spend(6 * k)
+  budget.rawStates += 2 * k
+  budget.rawTransitions += 4 * k
+  // w_i is state 2i, h_i is state 2i + 1 (i from 0).
+  const succ: number[][] = []
+  for (let i = 0; i < k; i++) {
+    const j = (i + 1) % k
+    succ.push([2 * i, 2 * i + 1], [2 * j, 2 * j + 1])
+  }
+  return {
+    states: 2 * k,
+    initial: succ.map((_, q) => q < 2),
+    pos: succ.map((_, q) => (q % 2 === 1 ? lits[q >> 1].pos : 0n)),
+    neg: succ.map((_, q) => (q % 2 === 1 ? lits[q >> 1].neg : 0n)),
+    succ,
+    acceptance: [succ.map((_, q) => q === 2 * k - 1)],
   }
 }
 

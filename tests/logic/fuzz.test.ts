@@ -46,7 +46,7 @@ const nestedArb = (atoms: number, depth: number): fc.Arbitrary<Ltl> => {
 /** Many disjuncts (or conjuncts) of eventually always / always eventually of state formulas. */
 const fairnessLikeArb = (atoms: number): fc.Arbitrary<Ltl> =>
   fc.tuple(
-    fc.array(fc.tuple(stateArb(atoms), fc.boolean()).map(([s, fg]) => (fg ? F(G(s)) : G(F(s)))), { minLength: 2, maxLength: 9 }),
+    fc.array(fc.tuple(stateArb(atoms), fc.boolean()).map(([s, fg]) => (fg ? F(G(s)) : G(F(s)))), { minLength: 2, maxLength: 16 }),
     fc.boolean(),
   ).map(([parts, disjoin]) => parts.reduce((x, y) => (disjoin ? or(x, y) : and(x, y))))
 

@@ -76,6 +76,17 @@ describe('the three reproductions of item 13 translate within the budget', () =>
     expect(satisfied).toBeLessThan(190)
   })
 
+  it('twenty disjuncts: the negation waits for each conjunct in turn, 40 states and one acceptance set', () => {
+    // One set per conjunct would need 20 of the product's 31 marks; past 12 conjuncts the
+    // translation uses the round-robin automaton instead.
+    const { aut } = negationAutomaton(fgDisjunction(20))
+    expect(aut.acceptanceSets).toBe(1)
+    expect(aut.states).toBeLessThanOrEqual(40)
+    const satisfied = agreesOnWords(fgDisjunction(20), 20, 150, 35, 0.15)
+    expect(satisfied).toBeGreaterThan(5)
+    expect(satisfied).toBeLessThan(145)
+  })
+
   it('the formula itself, a disjunction of eventually always, is the union of small automata', () => {
     const work = {} as TranslationWork
     const aut = ltlToAutomaton(fgDisjunction(10), { work })

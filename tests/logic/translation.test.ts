@@ -3,7 +3,7 @@
 // Oracle throughout: the direct evaluator of tests/logic/lasso.ts (textbook semantics on u·v^ω),
 // which uses no normal form, no rewriting, no predicates and no automaton. Sizes are asserted
 // through the translation's work counters, never through time.
-import { describe, expect, it } from 'vitest'
+import { describe, expect, it, vi } from 'vitest'
 import {
   type Automaton, ltlToAutomaton, showAutomaton, TRANSLATION_BUDGET, TranslationAborted, type TranslationWork,
 } from '../../kernels/logic/automaton'
@@ -144,6 +144,26 @@ describe('the translation budget, Stop and progress (item 13b)', () => {
     expect(polls).toBe(3)
     expect(v.stopped).toBe(true)
     expect(v.holds).toBe(null)
+  })
+
+  it('reports progress with the work done so far, at most every 100 ms of the clock', () => {
+    // The clock is faked and moved by hand at each poll of Stop, so nothing here depends on time.
+    vi.useFakeTimers()
+    try {
+      const seen: number[] = []
+      let polls = 0
+      ltlToAutomaton(not(nested(4)), {
+        shouldStop: () => { polls++; vi.advanceTimersByTime(polls % 2 === 0 ? 150 : 10); return false },
+        onProgress: (created) => seen.push(created),
+      })
+      expect(polls).toBeGreaterThan(4)
+      // Every other poll moves the clock past 100 ms since the last report.
+      expect(seen.length).toBeGreaterThanOrEqual(Math.floor(polls / 2) - 1)
+      expect(seen.length).toBeLessThanOrEqual(Math.ceil(polls / 2) + 1)
+      for (let i = 1; i < seen.length; i++) expect(seen[i]).toBeGreaterThan(seen[i - 1])
+    } finally {
+      vi.useRealTimers()
+    }
   })
 
   it('a stopped translation raises TranslationAborted with reason stopped', () => {

@@ -192,6 +192,22 @@ export type LtlVerdict =
 /** Options of `checkLtl`: the search's, and the translation's budget and work counters (Stop reaches both). */
 export type CheckLtlOptions = EmptinessOptions & {
   translation?: Pick<TranslationOptions, 'budget' | 'work' | 'onProgress'>
+  /** The automaton of the negated formula, from `negationAutomaton`, when already built. */
+  automaton?: Automaton
+}
+
+/**
+ * The automaton of the negation of `formula` (what `checkLtl` searches with), or why there is
+ * none: stopped, or a reason in one sentence (over budget, too many acceptance sets). A runner
+ * that checks one formula on several systems translates once and hands it as `opts.automaton`.
+ */
+export function negationAutomaton(formula: Ltl, opts: CheckLtlOptions = {}): Automaton | { stopped: true } | { stopped: false; reason: string } {
+  try {
+    return ltlToAutomaton(not(formula), { ...opts.translation, shouldStop: opts.shouldStop })
+  } catch (e) {
+    if (!(e instanceof TranslationAborted)) throw e
+    return e.reason === 'stopped' ? { stopped: true } : { stopped: false, reason: e.message }
+  }
 }
 
 /**
@@ -200,14 +216,8 @@ export type CheckLtlOptions = EmptinessOptions & {
  * its lasso of system states, starting in an initial state.
  */
 export function checkLtl(sys: System, formula: Ltl, opts: CheckLtlOptions = {}): LtlVerdict {
-  let aut: Automaton
-  try {
-    aut = ltlToAutomaton(not(formula), { ...opts.translation, shouldStop: opts.shouldStop })
-  } catch (e) {
-    if (!(e instanceof TranslationAborted)) throw e
-    if (e.reason === 'stopped') return { holds: null, stopped: true, nodes: 0, edges: 0 }
-    return { holds: null, stopped: false, reason: e.message, nodes: 0, edges: 0 }
-  }
+  const aut = opts.automaton ?? negationAutomaton(formula, opts)
+  if (!('states' in aut)) return aut.stopped ? { holds: null, stopped: true, nodes: 0, edges: 0 } : { holds: null, stopped: false, reason: aut.reason, nodes: 0, edges: 0 }
   if (sys.fairnessSets + aut.acceptanceSets > 31) {
     return {
       holds: null, stopped: false, nodes: 0, edges: 0,

@@ -16,7 +16,9 @@
 //   automaton of k+1 states for k of them (one state per p, in its own acceptance set, and one
 //   waiting state; every state leads to every state), or for more than 12 of them one of 2k states
 //   with a single acceptance set that waits for each p in turn, intersected with the automaton of
-//   the other conjuncts; the tableau would build 2^k states.
+//   the other conjuncts; the tableau would build 2^k states;
+// - an and/or combination of `eventually l` and `always l` over 3 to 9 literals (an `iff` chain of
+//   such parts) becomes a deterministic automaton that records which literals have held.
 // The tableau itself expands each set of obligations (GPVW's Next) once and keys its states by
 // (label, unfulfilled promises, next obligations), so two nodes that differ only in the
 // bookkeeping of Old are one state. Within the expansion of one set, a node is dropped when
@@ -39,7 +41,7 @@
 //   redundant. A run is accepting when it visits every set infinitely often. As transition marks
 //   (what the product and the emptiness check use) an edge carries the sets of its source state:
 //   `transitionMarks`.
-import { type Ltl, abstractStates, atomCount, isNnf, key, show, simplify, stateHolds } from './ltl'
+import { type Ltl, abstractStates, atomCount, isNnf, key, nnf, nnfSize, show, simplify, stateHolds } from './ltl'
 import { csrFromEdges, tarjanScc } from './scc'
 
 /** A generalized Büchi automaton with state labels; plain data, see the file comment for the conventions. */
@@ -183,9 +185,14 @@ export function ltlToAutomaton(f: Ltl, opts: TranslationOptions = {}): Automaton
   const { formula, predicates } = abstractStates(f)
   const budget = new Budget(opts)
   try {
+    // The negation normal form is built as a tree: its size counts against the budget first.
+    budget.spend(nnfSize(formula))
+    // Seen on the negation normal form before rewriting, which keeps `eventually a or eventually
+    // b` apart (simplify would merge them into `eventually (a or b)`).
+    const ev = eventualities(nnf(formula))
     const g = simplify(formula)
-    const letters = predicates ? predicates.length : atomCount(g)
-    const aut = reduce(translate(g, budget), letters, budget)
+    const letters = predicates ? predicates.length : atomCount(formula)
+    const aut = reduce(ev ? subsetAutomaton(ev, budget) : translate(g, budget), letters, budget)
     aut.atoms = atomCount(f)
     if (predicates) aut.predicates = predicates
     return aut
@@ -305,6 +312,90 @@ function gfRound(lits: { pos: bigint; neg: bigint }[], budget: Budget): Raw {
     neg: succ.map((_, q) => (q % 2 === 1 ? lits[q >> 1].neg : 0n)),
     succ,
     acceptance: [succ.map((_, q) => q === 2 * k - 1)],
+  }
+}
+
+/**
+ * A formula that is an and/or combination of `eventually l` and `always l`, l a letter literal,
+ * mixing both connectives (as the negation normal form of an `iff` chain of such parts does), with
+ * 3 to 9 distinct literals l_j behind its eventualities (`always l` is `not eventually not l`).
+ * `value(S)` is its truth on a word where exactly the l_j with j in S ever hold.
+ */
+interface Eventualities { lits: Ltl[]; value: (seen: number) => boolean }
+
+function eventualities(f: Ltl): Eventualities | null {
+  const lits: Ltl[] = []
+  const ids = new Map<string, number>()
+  let ands = 0, ors = 0
+  const negate = (l: Ltl): Ltl => (l.op === 'not' ? l.arg : { op: 'not', arg: l })
+  const isLit = (l: Ltl) => l.op === 'atom' || (l.op === 'not' && l.arg.op === 'atom')
+  const leaf = (l: Ltl) => {
+    const k = key(l)
+    let j = ids.get(k)
+    if (j === undefined) { j = lits.length; lits.push(l); ids.set(k, j) }
+    return j
+  }
+  const walk = (g: Ltl): ((seen: number) => boolean) | null => {
+    if (g.op === 'true') return () => true
+    if (g.op === 'false') return () => false
+    if (g.op === 'until' && g.left.op === 'true' && isLit(g.right)) { const j = leaf(g.right); return (seen) => ((seen >>> j) & 1) === 1 }
+    if (g.op === 'release' && g.left.op === 'false' && isLit(g.right)) { const j = leaf(negate(g.right)); return (seen) => ((seen >>> j) & 1) === 0 }
+    if (g.op === 'and' || g.op === 'or') {
+      if (g.op === 'and') ands++; else ors++
+      const l = walk(g.left), r = walk(g.right)
+      if (!l || !r) return null
+      return g.op === 'and' ? (seen) => l(seen) && r(seen) : (seen) => l(seen) || r(seen)
+    }
+    return null
+  }
+  const value = walk(f)
+  if (!value || ands === 0 || ors === 0 || lits.length < 3 || lits.length > 9) return null
+  return { lits, value }
+}
+
+/**
+ * The deterministic automaton of `Eventualities`: a state (S, T) has seen the literals of S at
+ * earlier positions and reads exactly those of T now among the others (its label: l_j for j in
+ * T, not l_j for j outside S and T); it leads to every (S + T, T'). The one run on a word reaches
+ * (S*, {}) for good, S* the literals that ever hold; the acceptance set is the (S, {}) whose
+ * value is true. 3^k states at most (labels that contradict are left out).
+ */
+function subsetAutomaton(ev: Eventualities, budget: Budget): Raw {
+  const k = ev.lits.length
+  const full = (1 << k) - 1
+  const lit = ev.lits.map(literalBits)
+  const ids = new Map<number, number>()
+  const pos: bigint[] = [], neg: bigint[] = [], key2: [number, number][] = []
+  for (let S = 0; S <= full; S++) {
+    for (let T = 0; T <= full; T++) {
+      if ((S & T) !== 0) continue
+      let p = 0n, n = 0n
+      for (let j = 0; j < k; j++) {
+        if ((T >>> j) & 1) { p |= lit[j].pos; n |= lit[j].neg } else if (!((S >>> j) & 1)) { p |= lit[j].neg; n |= lit[j].pos }
+      }
+      if ((p & n) !== 0n) continue
+      budget.spend(1)
+      ids.set(S * (full + 1) + T, pos.length)
+      pos.push(p); neg.push(n); key2.push([S, T])
+    }
+  }
+  const succ = key2.map(([S, T]) => {
+    const U = S | T, out: number[] = []
+    for (let T2 = 0; T2 <= full; T2++) {
+      if ((T2 & U) !== 0) continue
+      const q = ids.get(U * (full + 1) + T2)
+      if (q !== undefined) out.push(q)
+    }
+    budget.spend(out.length)
+    return out
+  })
+  budget.rawStates += pos.length
+  budget.rawTransitions += succ.reduce((a, o) => a + o.length, 0)
+  return {
+    states: pos.length,
+    initial: key2.map(([S]) => S === 0),
+    pos, neg, succ,
+    acceptance: [key2.map(([S, T]) => T === 0 && ev.value(S))],
   }
 }
 

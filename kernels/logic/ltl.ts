@@ -208,6 +208,37 @@ function neg(f: Ltl): Ltl {
   }
 }
 
+/**
+ * The number of nodes `nnf(f)` has as a tree, computed without building it (it is exponential in
+ * the nesting of `iff` over temporal parts), so that a caller can refuse before expanding.
+ */
+export function nnfSize(f: Ltl): number {
+  const memo = new Map<Ltl, [number, number]>()
+  const go = (g: Ltl): [number, number] => {
+    let r = memo.get(g)
+    if (r) return r
+    switch (g.op) {
+      case 'true': case 'false': r = [1, 1]; break
+      case 'atom': r = [1, 2]; break
+      case 'not': { const [p, n] = go(g.arg); r = [n, p]; break }
+      case 'next': { const [p, n] = go(g.arg); r = [1 + p, 1 + n]; break }
+      case 'always': case 'eventually': { const [p, n] = go(g.arg); r = [2 + p, 2 + n]; break }
+      default: {
+        const [lp, ln] = go(g.left), [rp, rn] = go(g.right)
+        switch (g.op) {
+          case 'implies': r = [1 + ln + rp, 1 + lp + rn]; break
+          case 'iff': r = [3 + lp + rp + ln + rn, 3 + lp + rp + ln + rn]; break
+          case 'unless': r = [2 + lp + 2 * rp, 2 + ln + 2 * rn]; break
+          default: r = [1 + lp + rp, 1 + ln + rn]
+        }
+      }
+    }
+    memo.set(g, r)
+    return r
+  }
+  return go(f)[0]
+}
+
 /** True when the formula is in negation normal form (see `nnf`). */
 export function isNnf(f: Ltl): boolean {
   switch (f.op) {

@@ -93,7 +93,7 @@ export async function runInductionRow(model: NotebookModel, plan: RowPlan, opts:
     const key = `${plan.check}|${n}|${plan.constants.join(',')}`
     let proof = cache.get(key)
     if (!proof) {
-      proof = proveInduction(protocol, check.properties, n, plan.constants, { shouldStop: opts.shouldStop })
+      proof = proveInduction(protocol, check.properties, n, plan.constants, { shouldStop: opts.shouldStop, onWait: opts.onWait })
       cache.set(key, proof)
     }
     const result = await proof

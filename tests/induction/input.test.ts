@@ -18,7 +18,7 @@ describe('a property that cannot be proved by induction', () => {
     // Temporal inside `always`: not a state formula S.
     ['settles', 'property settles = forall p, q: always (p.dark[q] implies eventually not alive(q))'],
     ['twice', 'property twice = forall p, q: always always not p.dark[q]'],
-    ['until', 'property until = forall p, q: always (not p.dark[q] until crashed(q))'],
+    ['waits', 'property waits = forall p, q: always (not p.dark[q] until crashed(q))'],
   ]
   for (const [name, property] of cases) {
     test(`\`${name}\` is a located error at its name in the check line, and nothing is run`, async () => {

@@ -118,6 +118,8 @@ describe('proof by induction in the workbench', () => {
     const report = await runNotebook(lanterns, 'lanterns.md', {})
     requests.length = 0
     const { page, errors, done } = await openWith('lanterns.md', lanterns, 'Harbour lanterns by induction')
+    // The solver's threads need SharedArrayBuffer, which only a cross-origin isolated page has.
+    expect(await page.evaluate(() => crossOriginIsolated)).toBe(true)
     expect(solverFiles()).toEqual([])
     await runAll(page)
     // The worker fetched Z3's WebAssembly once (streamed: the server says application/wasm), and

@@ -150,4 +150,26 @@ describe('Ctrl-C on the command line', () => {
       ws.remove()
     }
   }, 120_000)
+
+  test('a real process: SIGINT during exploration ends it at once (no listener holds it up)', async () => {
+    // Depot counters under asynchronous timing: 2048 x 2048 reachable states, far more than the
+    // few seconds before the signal can explore.
+    const depots = '# Depot counters\n\n```protocol\nprotocol depot {\n  timing asynchronous\n  message tick\n  state x: 0..2047 = 0\n  step { x := (x + 1) % 2048 }\n}\n```\n\n```property\nproperty small = forall p: always p.x < 2048\n```\n\n```check\ncheck depot: small at N = 2\n```\n'
+    const ws = workspace({ 'depots.md': depots })
+    const bin = new URL('../../bin/twofold.js', import.meta.url).pathname
+    try {
+      const child = spawn(process.execPath, [bin, 'check', 'depots.md'], { cwd: ws.dir, stdio: ['ignore', 'pipe', 'pipe'] })
+      let stdout = ''
+      child.stdout.on('data', (d) => { stdout += d })
+      const exited = new Promise<{ code: number | null; signal: string | null }>((ok) => child.on('exit', (code, signal) => ok({ code, signal })))
+      const cpu = () => { const f = readFileSync(`/proc/${child.pid}/stat`, 'utf8').split(') ')[1].split(' '); return (Number(f[11]) + Number(f[12])) / 100 }
+      while (cpu() < 3) await new Promise((ok) => setTimeout(ok, 100))
+      child.kill('SIGINT')
+      // Ended by the signal itself (a shell reports 130), with no report.
+      expect(await exited).toEqual({ code: null, signal: 'SIGINT' })
+      expect(stdout).toBe('')
+    } finally {
+      ws.remove()
+    }
+  }, 120_000)
 })

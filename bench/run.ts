@@ -60,7 +60,7 @@ if (json) {
   console.log(`  ${pc.name}: ${pc.lines} lines in ${pc.seconds.toFixed(3)} s = ${f(pc.linesPerSecond)} lines/s (${pc.diagnostics} diagnostics)`)
   console.log(`  baseline: ${parse.baseline.name}: ${f(parse.baseline.linesPerSecond)} lines/s`)
   const b = induction.budget
-  console.log(`Induction against exploration (lanterns, two-index invariant calm and fresh, ${b} s per size; Z3 loaded in ${induction.solverLoadSeconds.toFixed(2)} s before timing)`)
+  console.log(`Induction against exploration (lanterns, two-index invariant calm and fresh, ${b} s per size; Z3 loaded in ${induction.solverLoadSeconds.toFixed(2)} s and a first untimed proof at N=2 in ${induction.warmupSeconds.toFixed(2)} s before timing)`)
   for (const r of induction.rows) console.log(`  ${r.engine.padEnd(12)} N=${r.processes}  ${r.outcome.padEnd(12)} ${r.seconds.toFixed(2)} s${r.states !== undefined ? `  ${f(r.states)} states` : ''}`)
   const cap = induction.largestInduction === induction.maxProcesses ? ` (every size the kernel compiles, up to ${induction.maxProcesses})` : ''
   console.log(`  largest N within ${b} s: induction ${induction.largestInduction}${cap}, exploration ${induction.largestExploration} (goal: induction >= 6 where exploration stops at 3)`)

@@ -36,6 +36,12 @@ export interface RunOptions {
   /** Polled regularly; returning true stops the current check (its row becomes inconclusive). */
   shouldStop?: () => boolean
   /**
+   * Called with true when the run starts waiting on work outside this thread (the SMT solver of a
+   * proof by induction) and with false when it computes here again. Only while it waits is the
+   * thread's event loop free, so that is when a command line can take Ctrl-C as a gentle stop.
+   */
+  onWait?: (waiting: boolean) => void
+  /**
    * Temporal rows: recompute the fair graph's rows when the product asks for them instead of
    * recording the graph during exploration (less memory, more time). Also automatic above
    * `RECORD_EDGE_BUDGET` edges.

@@ -16,12 +16,14 @@ export const DEFAULT_BUDGET = 20_000
 
 /** Options of one proof. */
 export interface InductionOptions {
-  /** Polled every 100 ms while the solver runs; true interrupts it (the result is `unknown`). */
+  /** Polled before each solver question and every 100 ms while it runs; true interrupts it (the result is `unknown`). */
   shouldStop?: () => boolean
   /** The largest encoding attempted, in guarded handler runs (default DEFAULT_BUDGET). */
   budget?: number
   /** Milliseconds per solver question before giving up (`unknown`); none by default. */
   timeoutMs?: number
+  /** Called with true when a solver question starts and false when it ends (RunOptions.onWait). */
+  onWait?: (waiting: boolean) => void
 }
 
 /** What a proof found. States are packed in the instance's layout. */
@@ -46,12 +48,16 @@ async function ask(z: Z3, solver: Solver<'twofold'>, opts: InductionOptions): Pr
   if (opts.timeoutMs) solver.set('timeout', opts.timeoutMs)
   if (opts.shouldStop?.()) return 'unknown'
   let stopped = false
-  const timer = opts.shouldStop ? setInterval(() => { if (!stopped && opts.shouldStop!()) { stopped = true; z.interrupt() } }, 100) : null
+  // Z3 drops an interrupt that arrives before the question is running on its thread, so a stop
+  // interrupts again at every poll until the question returns.
+  const timer = opts.shouldStop ? setInterval(() => { if (stopped || opts.shouldStop!()) { stopped = true; z.interrupt() } }, 100) : null
+  opts.onWait?.(true)
   try {
     const answer = await solver.check()
     return stopped ? 'unknown' : answer
   } finally {
     if (timer) clearInterval(timer)
+    opts.onWait?.(false)
   }
 }
 

@@ -93,7 +93,7 @@ export async function runInductionRow(model: NotebookModel, plan: RowPlan, opts:
     const key = `${plan.check}|${n}|${plan.constants.join(',')}`
     let proof = cache.get(key)
     if (!proof) {
-      proof = proveInduction(protocol, check.properties, n, plan.constants, { shouldStop: opts.shouldStop })
+      proof = proveInduction(protocol, check.properties, n, plan.constants, { shouldStop: opts.shouldStop, onWait: opts.onWait })
       cache.set(key, proof)
     }
     const result = await proof
@@ -200,8 +200,9 @@ function inductionCounterexample(inst: Instance, out: Extract<InductionProof['ou
     message,
     initial: inst.describeInitial(out.before, 0),
     ticks: out.after ? [inst.describeTick(out.before, 0, out.after, 0, 1)] : [],
-    // The failing conjunct as an atom band: true in s, false in s' (the diagram highlights it).
-    ...(c && out.after ? { atoms: [{ text: `${conjunct}: ${sourceOf(props[c.property])}`, values: [true, false] }] } : {}),
+    // The failing conjunct as an atom band: true in s, false in s' (the diagram highlights it). The
+    // text keeps the property's variables; readers fill in the row's assignment (as for any atom).
+    ...(c && out.after ? { atoms: [{ text: `${props[c.property].name}: ${sourceOf(props[c.property])}`, values: [true, false] }] } : {}),
     induction: {
       before: inductionState(inst, out.before),
       after: out.after ? inductionState(inst, out.after) : null,

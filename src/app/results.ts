@@ -204,7 +204,9 @@ export function counterexampleMarkup(r: CheckRow, forCheck = false): Markup {
   const size = `${r.processes} ${r.processes === 1 ? 'process' : 'processes'}`
   const heading = cx.kind === 'model-error'
     ? (forCheck ? `A model error stops every property of this check with ${size}` : `A model error stops ${r.property} with ${size}`)
-    : `Why ${r.property} is violated with ${size}: ${cx.kind === 'lasso' ? 'a run that repeats forever' : 'a shortest run to the violation'}`
+    : cx.kind === 'induction'
+      ? `Why ${r.property} is not proved by induction with ${size}: one tick from a state s that satisfies the invariant to a state s' that does not`
+      : `Why ${r.property} is violated with ${size}: ${cx.kind === 'lasso' ? 'a run that repeats forever' : 'a shortest run to the violation'}`
   const message = cx.kind === 'model-error' ? modelErrorMarkup(cx.message) : withCode(cx.message)
   return html`<section class="witness${cx.kind === 'model-error' ? ' witness-error' : ''}" data-row="${r.row}" aria-label="counterexample for ${r.property} with ${size}"><h4>${heading}</h4><p class="witness-message">${message}</p><div class="witness-body"><div class="diagram">${raw(counterexampleSvg(cx, r.processes, { assignment: r.assignment }))}</div><div class="tick-table">${raw(changesTable(cx))}</div></div></section>`
 }

@@ -7,7 +7,8 @@ import type { RunOptions } from '../../kernels/api'
 import { planOf } from '../../kernels/plan'
 import { OutputError, refuseInputAsOutput } from './atomic'
 import { resolveCheckOptions, type OutputFlags } from './check-options'
-import { REFUSED, checkExitCode } from './exit'
+import { INTERRUPTED, REFUSED, checkExitCode } from './exit'
+import { interruptOnCtrlC } from './interrupt'
 import { CliFailure, STDIN_NAME, readInput, readStdin, writeOutput, type CliIo } from './io'
 import { progressLine } from './progress'
 import { emitReport } from './report-output'
@@ -50,12 +51,23 @@ export async function runCheck(io: CliIo, loadKernel: () => Promise<RecordKernel
 
   const progress = progressLine(options.quiet ? { ...io, stderrIsTTY: false } : io)
   // `workers` reaches the kernel as it grows parallel exploration; until then it is ignored there.
-  const run: RunOptions & { workers?: number } = { only: flags.only, shard, workers: options.workers, onProgress: (p) => progress.report(p) }
+  const ctrlC = interruptOnCtrlC(io)
+  const run: RunOptions & { workers?: number } = {
+    only: flags.only, shard, workers: options.workers, onProgress: (p) => progress.report(p),
+    shouldStop: ctrlC.requested, onWait: ctrlC.onWait,
+  }
   let report
   try {
     report = await kernel.runNotebook(text, path, run)
   } finally {
+    ctrlC.release()
     progress.clear()
+  }
+  if (ctrlC.requested()) {
+    // A stopped run is no evidence of what holds, so it leaves no record.
+    await emitReport(io, options, report, model, INTERRUPTED, undefined)
+    io.stderr(`twofold: interrupted by Ctrl-C: the report shows what finished${flags.record !== undefined ? `; no record was written to ${flags.record}` : ''}\n`)
+    return INTERRUPTED
   }
 
   if (flags.record !== undefined) {

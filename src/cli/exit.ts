@@ -13,6 +13,8 @@ export const VIOLATED = 1
 export const REFUSED = 2
 /** `twofold check`: nothing violated but something inconclusive or in error. Any command: an internal error. */
 export const INCONCLUSIVE = 3
+/** `twofold check`: stopped by Ctrl-C; the report shows what finished (128 + SIGINT, as shells say). */
+export const INTERRUPTED = 130
 
 /** The exit code of `twofold check` for a report. */
 export function checkExitCode(report: Report): number {

@@ -25,6 +25,14 @@ export interface CliIo {
   stdin?: AsyncIterable<string | Uint8Array> | Iterable<string | Uint8Array>
   /** Whether stdout is a terminal: the table is coloured only then, unless `--color` says otherwise. */
   stdoutIsTTY?: boolean
+  /** Where Ctrl-C arrives (interrupt.ts): the process when run as a command; tests pass their own emitter, or none. */
+  signals?: Signals
+}
+
+/** The part of `process` that Ctrl-C handling uses. */
+export interface Signals {
+  once(signal: 'SIGINT', listener: () => void): unknown
+  off(signal: 'SIGINT', listener: () => void): unknown
 }
 
 /** The name a notebook read from standard input goes by in reports, records and messages. */
@@ -56,6 +64,7 @@ export function processIo(): CliIo {
     cwd: process.cwd(),
     env: process.env,
     stdin: process.stdin,
+    signals: process,
   }
 }
 

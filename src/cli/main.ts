@@ -48,7 +48,9 @@ export async function main(argv: string[], io: CliIo): Promise<number> {
     .addHelpText(
       'after',
       '\nExit codes: 0 every check holds; 1 some check is violated; 2 the notebook has errors (nothing\n' +
-        'was checked), or it cannot be read; 3 nothing violated but something inconclusive or in error.',
+        'was checked), or it cannot be read; 3 nothing violated but something inconclusive or in error;\n' +
+        '130 stopped by Ctrl-C (while a proof by induction waits on the solver, the report of what finished\n' +
+        'is printed first).',
     )
     .action(async (notebook: string, flags: CheckFlags) => {
       code = await runCheck(io, kernel, notebook, flags)

@@ -73,7 +73,9 @@ export function renderReport(report: Report, options: RenderOptions = {}): strin
     const title = `${row.protocol}/${row.property} ${row.processes < 1 ? '(no instance checked)' : `on ${instanceLabel(row)}`}${Object.keys(row.constants).length ? ` with ${constantsLabel(row.constants)}` : ''}`
     const lines: string[] = []
     if (row.note) lines.push(`  ${row.note}`)
-    if (!row.complete && row.verdict !== 'violated' && row.processes >= 1) lines.push('  stopped before exploring every state (counts are a lower bound)')
+    // A proof by induction that explored nothing has no counts to qualify.
+    const explored = row.method !== 'induction' || row.states > 0
+    if (!row.complete && row.verdict !== 'violated' && row.processes >= 1 && explored) lines.push('  stopped before exploring every state (counts are a lower bound)')
     if (!row.cutoff.applies && row.cutoff.reasons.length) {
       lines.push('  cutoff refused:')
       for (const reason of row.cutoff.reasons) lines.push('    ' + diagnosticLine(path, reason.line, reason.column, `${ruleLabel(reason.rule, reason.name)}: ${reason.message}`))

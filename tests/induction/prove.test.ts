@@ -101,8 +101,10 @@ describe('the workbench draws a counterexample to induction as a one-tick diagra
     const { counterexampleSvg, changesTable } = await import('../../src/app/diagram')
     const [row] = await inductionRows(lanternsNotebook([CALM], ['check lanterns: calm at N = 2']))
     const cx = row.counterexample!
-    expect(cx.atoms).toEqual([{ text: expect.stringMatching(/^calm at p = \d, q = \d: alive\(q\) implies not p\.dark\[q\]$/), values: [true, false] }])
-    const svg = counterexampleSvg(cx, row.processes)
+    expect(cx.atoms).toEqual([{ text: 'calm: alive(q) implies not p.dark[q]', values: [true, false] }])
+    const svg = counterexampleSvg(cx, row.processes, { assignment: row.assignment })
+    const { p, q } = row.assignment
+    expect(svg).toContain(`calm: alive(${q}) implies not ${p}.dark[${q}]`)
     expect(svg).toContain('>s</text>')
     expect(svg).toContain('>s&#39;</text>')
     expect(svg).toContain('class="atom-band"')

@@ -21,8 +21,21 @@ export function didYouMean(name: string, candidates: Iterable<string>): string {
   const allowed = name.length <= 4 ? 1 : 2
   for (const c of candidates) {
     if (c === name) continue
+    // Beyond the budget (a notebook with a huge number of unknown names and of names), no more
+    // suggestions: each would scan every name, and analysis must stay linear.
+    if (--budget.left < 0) return ''
+    // A name whose length differs by more than the edits allowed cannot be close enough.
+    if (Math.abs(c.length - name.length) > allowed) continue
     const d = distance(name, c)
     if (d < bestDistance || (d === bestDistance && best !== null && c < best)) { best = c; bestDistance = d }
   }
   return best !== null && bestDistance <= allowed ? ` (did you mean \`${best}\`?)` : ''
+}
+
+/** Candidate names examined by `didYouMean`, over one analysis. */
+const budget = { left: Infinity }
+
+/** Sets the number of candidate names that suggestions may examine from now on (per analysis). */
+export function budgetSuggestions(candidates: number): void {
+  budget.left = candidates
 }

@@ -4,12 +4,12 @@ import { BlockContext, children, droppedDiagnostics } from './context'
 import { CheckScope, resolveCheck } from './check'
 import type { BlockRef, CheckModel, Diagnostic, NotebookModel, PropertyDecl, ProtocolModel } from './model'
 import { readNotebook } from './notebook'
-import { MAX_DIAGNOSTICS, MAX_NOTEBOOK_CHARS } from './limits'
+import { MAX_DIAGNOSTICS, MAX_NESTING, MAX_NOTEBOOK_CHARS } from './limits'
 import { LineMap } from './positions'
 import { declareProperty } from './property'
 import { hasError, resolveProtocol } from './protocol'
 import { budgetSuggestions } from './suggest'
-import { parseBlock, reportSyntaxErrors } from './syntax'
+import { parseBlock, reportSyntaxErrors, tooDeep } from './syntax'
 
 const KIND_OF: Record<string, BlockRef['kind']> = { ProtocolDecl: 'protocol', PropertyDecl: 'property', CheckDecl: 'check' }
 
@@ -40,12 +40,22 @@ function analyze(text: string): NotebookModel {
   const protocols: ProtocolModel[] = []
   const properties: PropertyDecl[] = []
   const checks: CheckModel[] = []
-  const scope: CheckScope = { protocols: new Map(), properties: new Map() }
+  const scope: CheckScope = { protocols: new Map(), properties: new Map(), unreadable: new Set() }
   const pendingChecks: { node: import('@lezer/common').SyntaxNode; ctx: BlockContext; at: number }[] = []
 
   for (const block of outline.blocks) {
     const ctx = new BlockContext(lines, block, diagnostics)
     const tree = parseBlock(block.text)
+    const deep = tooDeep(tree)
+    if (deep) {
+      // One error for the block: past the limit the parser's recovery reports nonsense.
+      for (const decl of children(tree.topNode)) {
+        const id = KIND_OF[decl.name] ? decl.getChild('Identifier') : null
+        if (id) scope.unreadable!.add(ctx.text(id))
+      }
+      ctx.error(deep, `the ${block.kind} block nests more than ${MAX_NESTING} levels deep here (parentheses, operators, \`if\` and \`for\`), the most a block may; split the expression or the statements, e.g. with helper variables or separate properties`)
+      continue
+    }
     reportSyntaxErrors(tree, ctx)
     for (const decl of children(tree.topNode)) {
       if (decl.type.isError) continue

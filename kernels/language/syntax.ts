@@ -4,6 +4,7 @@
 import type { SyntaxNode, Tree } from '@lezer/common'
 import { parser } from './parser.js'
 import type { BlockContext } from './context'
+import { MAX_NESTING } from './limits'
 
 /** What a construct is called in messages. */
 const THING: Record<string, string> = {
@@ -194,4 +195,39 @@ export function reportSyntaxErrors(tree: Tree, ctx: BlockContext): number {
     },
   })
   return count
+}
+
+/**
+ * The constructs that count as one level of nesting (limits.ts, MAX_NESTING). Between two of them
+ * a tree path has at most one other node (a `Block`, an `ArgList`, a statement), so a block
+ * within the limit is a tree well inside the parser's own depth guards.
+ */
+const LEVEL = new Set([
+  'ParenExpression', 'CallExpression', 'Negation', 'PrefixExpression', 'BinaryExpression', 'IfExpression',
+  'Aggregate', 'Forall', 'IfStatement', 'ElseIf', 'Else', 'ForStatement', 'BoundNegation', 'BoundArithmetic',
+  'ChoiceSet', 'ChoiceRange',
+])
+
+/**
+ * The first construct (in text order) at which a block nests more than MAX_NESTING levels, or
+ * null. Input nested far deeper than that is broken by the parser into spurious errors, but the
+ * tree it leaves still nests past the limit there, so this finds it either way.
+ */
+export function tooDeep(tree: Tree): { from: number; to: number } | null {
+  let depth = 0
+  let found: { from: number; to: number } | null = null
+  tree.iterate({
+    enter(ref) {
+      if (found) return false
+      if (!LEVEL.has(ref.name)) return
+      if (++depth > MAX_NESTING) {
+        found = { from: ref.from, to: ref.from + 1 }
+        return false
+      }
+    },
+    leave(ref) {
+      if (LEVEL.has(ref.name)) depth--
+    },
+  })
+  return found
 }

@@ -158,6 +158,11 @@ export class FairGraphRecorder implements EdgeRecorder {
     if (budget <= 0) this.abandon()
   }
 
+  /** Bytes held by the edges recorded so far. */
+  get bytes(): number {
+    return this.start ? this.start.bytes + this.target.bytes + this.marks.bytes : 0
+  }
+
   /** Whether the budget was exceeded (nothing is kept then). */
   get abandoned(): boolean {
     return this.start === null

@@ -44,7 +44,7 @@ describe('long enums (item 14)', () => {
     expect(c.type.k === 'enum' && c.type.labels.length).toBe(MAX_ENUM_LABELS)
     // Equal enums share one labels array.
     const d = full.model.protocols[0].vars[1]
-    expect(d.type.k === 'enum' && d.type.labels === c.type.labels).toBe(true)
+    expect(d.type.k === 'enum' && c.type.k === 'enum' && d.type.labels === c.type.labels).toBe(true)
     // The label assigned in the step is the last one: its value is its position.
     const step = full.model.protocols[0].step[0]
     expect(step.k === 'assign' && step.value.k === 'lit' && step.value.value).toBe(MAX_ENUM_LABELS - 1)

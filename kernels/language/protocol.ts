@@ -633,6 +633,7 @@ class ProtocolResolver {
         const name = ctx.text(node.getChild('Identifier')!)
         const index = indexByName(this.vars, name)
         if (index < 0) {
+          if (this.names.get(name)?.what === 'variable') return null
           ctx.error(node.getChild('Identifier')!, `unknown variable \`${name}\`${didYouMean(name, this.vars.map((v) => v.name))}; declare it with \`state ${name}[peer]: TYPE = INIT\``)
           return null
         }
@@ -782,6 +783,8 @@ class ProtocolResolver {
       }
       return { e: { k: 'lit', value: labelIndex((sort as { labels: readonly string[] }).labels, name), span }, sort }
     }
+    // A variable whose type was refused is declared without a type: its error says enough.
+    if (this.names.get(name)?.what === 'variable') return null
     const candidates = [
       ...this.consts.map((x) => x.name), ...this.vars.map((x) => x.name), ...scope.fields.keys(), ...this.labels.keys(),
     ]

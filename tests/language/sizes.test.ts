@@ -2,6 +2,7 @@
 // and every size limit of limits.ts is refused at the construct with its line and column. No
 // timing: linearity is checked on the checker's own count of label work (`labelWork`), which a
 // quadratic label lookup or enum comparison would make grow fourfold when the enum doubles.
+import { readFileSync } from 'node:fs'
 import { describe, expect, test } from 'vitest'
 import { analyzeNotebook } from '../../kernels/language/analyze'
 import { MAX_DIAGNOSTICS, MAX_ENUM_LABELS, MAX_NESTING, MAX_NOTEBOOK_CHARS } from '../../kernels/language/limits'
@@ -147,5 +148,22 @@ describe('deep nesting (item 17)', () => {
     expect(errors(chain(MAX_NESTING + 1))).toEqual([])
     expect(errors(chain(MAX_NESTING + 2)).map((e) => e[2])).toEqual([tooDeep('protocol')])
     expect(errors(chain(2000)).map((e) => e[2])).toEqual([tooDeep('protocol')])
+  })
+})
+
+describe('the README and the guide state these limits', () => {
+  const readme = readFileSync(new URL('../../README.md', import.meta.url), 'utf8')
+  const limits = readme.slice(readme.indexOf('## Limits'), readme.indexOf('\n## ', readme.indexOf('## Limits') + 1))
+  const guide = readFileSync(new URL('../../notebooks/guide.md', import.meta.url), 'utf8').replace(/\s+/g, ' ')
+  test.each([
+    ['longest notebook', MAX_NOTEBOOK_CHARS],
+    ['longest enum', MAX_ENUM_LABELS],
+    ['deepest nesting', MAX_NESTING],
+    ['diagnostics', MAX_DIAGNOSTICS],
+  ])('%s: %i', (what, value) => {
+    const item = limits.split('\n- ').find((l) => l.toLowerCase().startsWith(what))
+    expect(item, `README Limits has an item "${what}"`).toBeDefined()
+    expect(item!.replace(/\s+/g, ' ')).toContain(String(value))
+    expect(guide).toContain(String(value))
   })
 })

@@ -53,9 +53,8 @@ if (json) {
   for (const c of reduction) {
     console.log(`  ${c.name.padEnd(48)} N=${c.processes}  ${f(c.representatives).padStart(9)} representatives for ${f(c.orbitTotal)} of ${f(c.states)} states  ${c.reducedSeconds.toFixed(2)} s against ${c.unreducedSeconds.toFixed(2)} s = ${c.speedup.toFixed(2)}x`)
   }
-  const pc = parse.cases[0]
   console.log('Parse and check')
-  console.log(`  ${pc.name}: ${pc.lines} lines in ${pc.seconds.toFixed(3)} s = ${f(pc.linesPerSecond)} lines/s (${pc.diagnostics} diagnostics)`)
+  for (const pc of parse.cases) console.log(`  ${pc.name}: ${pc.lines} lines in ${pc.seconds.toFixed(3)} s = ${f(pc.linesPerSecond)} lines/s (${pc.diagnostics} diagnostics)`)
   console.log(`  baseline: ${parse.baseline.name}: ${f(parse.baseline.linesPerSecond)} lines/s`)
   console.log('Induction against exploration (lanterns, two-index invariant calm and fresh, 60 s per size)')
   for (const r of induction.rows) console.log(`  ${r.engine.padEnd(12)} N=${r.processes}  ${r.outcome.padEnd(12)} ${r.seconds.toFixed(2)} s${r.states !== undefined ? `  ${f(r.states)} states` : ''}`)

@@ -48,7 +48,9 @@ function analyze(text: string): NotebookModel {
     const tree = parseBlock(block.text)
     const deep = tooDeep(tree)
     if (deep) {
-      // One error for the block: past the limit the parser's recovery reports nonsense.
+      // Past the limit the parser's recovery reports nonsense: the syntax errors before it, then
+      // one error for the nesting, and the block is not read.
+      reportSyntaxErrors(tree, ctx, deep.from)
       for (const decl of children(tree.topNode)) {
         const id = KIND_OF[decl.name] ? decl.getChild('Identifier') : null
         if (id) scope.unreadable!.add(ctx.text(id))

@@ -142,6 +142,19 @@ describe('deep nesting (item 17)', () => {
     }
   })
 
+  test('broken input that the parser repairs into a deep tree gets its syntax errors, not a nesting error', () => {
+    const text = '```protocol\nprotocol deep {\n  timing asynchronous\n  state x: 0..3 = 0\n  step { ' + 'x := := '.repeat(300) + '}\n}\n```\n'
+    const errs = errors(text)
+    expect(errs.length).toBeGreaterThan(0)
+    expect(errs.filter((e) => /nests more than/.test(e[2]))).toEqual([])
+    expect(errs[0].slice(0, 2)).toEqual([5, 15])
+  })
+
+  test('a syntax error in one declaration does not hide deep nesting in the next', () => {
+    const text = '```protocol\nprotocol deep {\n  timing asynchronous\n  state x: 0..3 = = 0\n  step { x := ' + '('.repeat(2000) + '1' + ')'.repeat(2000) + ' }\n}\n```\n'
+    expect(errors(text).map((e) => e.slice(0, 2))).toEqual([[4, 19], [5, 15 + MAX_NESTING]])
+  })
+
   test('long chains of one operator count each operator (the parser breaks them past a few hundred)', () => {
     const chain = (terms: number) => '```protocol\nprotocol deep {\n  timing asynchronous\n  state x: 0..3 = 0\n  step { x := ' +
       Array.from({ length: terms }, () => 'x').join(' + ') + ' }\n}\n```\n'

@@ -29,7 +29,7 @@ export function analyzeNotebook(text: string): NotebookModel {
 }
 
 /** Candidate names that "did you mean" suggestions may examine in one analysis. */
-const SUGGESTION_BUDGET = 20_000_000
+const SUGGESTION_BUDGET = 2_000_000
 
 function analyze(text: string): NotebookModel {
   if (text.length > MAX_NOTEBOOK_CHARS) return tooLong(text)

@@ -8,7 +8,7 @@ import { protocolProblems, termProblems } from './bounds'
 import { isModelValue, MAX_PROCESSES, MAX_SWEEP_ROWS, MAX_SWEEP_VALUES, MAX_TEMPORAL_PROCESSES } from './limits'
 import type { CheckModel, Formula, PropertyModel, ProtocolModel, Span, SweepItem, Term } from './model'
 import { DeclaredProperty, resolveProperty } from './property'
-import { didYouMean } from './suggest'
+import { didYouMean, namesOf } from './suggest'
 
 /** What a check can see: what is defined above it, and what is defined anywhere (for messages). */
 export interface CheckScope {
@@ -236,7 +236,7 @@ export function resolveCheck(node: SyntaxNode, ctx: BlockContext, scope: CheckSc
     const cname = ctx.text(cid)
     const constIndex = protocol.consts.findIndex((c) => c.name === cname)
     if (constIndex < 0) {
-      ctx.error(cid, `protocol \`${pname}\` has no constant \`${cname}\`${didYouMean(cname, protocol.consts.map((c) => c.name))}; sweep one of its constants`)
+      ctx.error(cid, `protocol \`${pname}\` has no constant \`${cname}\`${didYouMean(cname, namesOf(protocol.consts))}; sweep one of its constants`)
       ok = false
       continue
     }

@@ -3,6 +3,7 @@ import type { SyntaxNode } from '@lezer/common'
 import type { BlockRef, Diagnostic, Span } from './model'
 import { MAX_DIAGNOSTICS } from './limits'
 import type { LineMap } from './positions'
+import { budgetSuggestions } from './suggest'
 
 /** Resolution context of one formal block: maps tree nodes to notebook spans and collects diagnostics. */
 export class BlockContext {
@@ -33,6 +34,8 @@ export class BlockContext {
   private report(severity: Diagnostic['severity'], at: SyntaxNode | Span | { from: number; to: number }, message: string): void {
     const span = 'line' in at ? at : this.span(at)
     if (this.diagnostics.length >= MAX_DIAGNOSTICS) {
+      // Nothing more is listed: suggestions for it would be wasted work.
+      budgetSuggestions(0)
       const o = overflow.get(this.diagnostics)
       if (o) o.count++
       else overflow.set(this.diagnostics, { count: 1, first: span })

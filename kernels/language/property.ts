@@ -7,7 +7,7 @@ import { BlockContext, children } from './context'
 import type { Formula, ProcRef, PropertyModel, ProtocolModel, Span, Term } from './model'
 import { binaryOperator, expressionChildren } from './protocol'
 import { BOOL, indexByName, INT, labelIndex, sameSort, Sort, sortName, sortOf } from './sorts'
-import { didYouMean } from './suggest'
+import { didYouMean, namesOf } from './suggest'
 
 /** A declared property with the syntax it was written in, resolved later per check. */
 export interface DeclaredProperty {
@@ -202,7 +202,7 @@ class PropertyResolver {
         }
         if (this.decl.vars.includes(text)) return this.error(node, `\`${text}\` is a process, not a value; write one of its variables, as in \`${text}.x\``)
         if (this.protocol.vars.some((v) => v.name === text)) return this.error(node, `\`${text}\` does not say whose variable it is; write it as \`p.${text}\``)
-        return this.error(node, `unknown name \`${text}\` in property \`${this.decl.name}\`${didYouMean(text, this.protocol.consts.map((c) => c.name))}, for ${this.against}; use a constant, a label or \`p.x\``)
+        return this.error(node, `unknown name \`${text}\` in property \`${this.decl.name}\`${didYouMean(text, namesOf(this.protocol.consts))}, for ${this.against}; use a constant, a label or \`p.x\``)
       }
       case 'Member': {
         const parts = children(node).filter((c) => c.name === 'Identifier' || c.name === 'ProcNumber')
@@ -211,7 +211,7 @@ class PropertyResolver {
         const index = indexByName(this.protocol.vars, vname)
         if (!proc) return null
         if (index < 0) {
-          return this.error(parts[1], `${this.against} has no variable \`${vname}\`${didYouMean(vname, this.protocol.vars.map((v) => v.name))}; property \`${this.decl.name}\` can only mention its state variables`)
+          return this.error(parts[1], `${this.against} has no variable \`${vname}\`${didYouMean(vname, namesOf(this.protocol.vars))}; property \`${this.decl.name}\` can only mention its state variables`)
         }
         const v = this.protocol.vars[index]
         const peerNode = parts[2]
@@ -229,7 +229,7 @@ class PropertyResolver {
         const ids = children(node).filter((c) => c.name === 'Identifier' || c.name === 'ProcNumber')
         const mname = ctx.text(ids[0])
         const message = indexByName(this.protocol.messages, mname)
-        if (message < 0) return this.error(ids[0], `${this.against} has no message \`${mname}\`${didYouMean(mname, this.protocol.messages.map((m) => m.name))}; name one of its messages`)
+        if (message < 0) return this.error(ids[0], `${this.against} has no message \`${mname}\`${didYouMean(mname, namesOf(this.protocol.messages))}; name one of its messages`)
         const from = this.proc(ids[1])
         const to = this.proc(ids[2])
         if (!from || !to) return null

@@ -11,7 +11,7 @@ import type {
 import { protocolProblems } from './bounds'
 import { BOOL, ConstantError, evalConstant, indexByName, INT, internLabels, labelIndex, labelWork, sameSort, Sort, sortName, sortOf } from './sorts'
 import { MAX_ENUM_LABELS } from './limits'
-import { didYouMean } from './suggest'
+import { didYouMean, namesOf } from './suggest'
 
 /** Node names that are expressions in the grammar. */
 export const EXPRESSION_NODES = new Set([
@@ -379,7 +379,7 @@ class ProtocolResolver {
     const msgName = ctx.text(msgNode)
     const message = indexByName(this.messages, msgName)
     if (message < 0) {
-      ctx.error(msgNode, `unknown message \`${msgName}\`${didYouMean(msgName, this.messages.map((m) => m.name))}; declare it with \`message ${msgName}\``)
+      ctx.error(msgNode, `unknown message \`${msgName}\`${didYouMean(msgName, namesOf(this.messages))}; declare it with \`message ${msgName}\``)
       return
     }
     const prior = this.handlerOf.get(message)
@@ -450,7 +450,7 @@ class ProtocolResolver {
       // A variable whose type was refused is declared without a type: its error says enough.
       if (what === 'variable') return null
       if (what) ctx.error(id, `\`${name}\` is a ${what} and cannot be assigned; assign a state variable`)
-      else ctx.error(id, `unknown variable \`${name}\`${didYouMean(name, this.vars.map((v) => v.name))}; declare it with \`state ${name}: TYPE = INIT\``)
+      else ctx.error(id, `unknown variable \`${name}\`${didYouMean(name, namesOf(this.vars))}; declare it with \`state ${name}: TYPE = INIT\``)
       return null
     }
     const v = this.vars[index]
@@ -554,7 +554,7 @@ class ProtocolResolver {
         const name = ctx.text(msgNode)
         const message = indexByName(this.messages, name)
         if (message < 0) {
-          ctx.error(msgNode, `unknown message \`${name}\`${didYouMean(name, this.messages.map((m) => m.name))}; declare it with \`message ${name}\``)
+          ctx.error(msgNode, `unknown message \`${name}\`${didYouMean(name, namesOf(this.messages))}; declare it with \`message ${name}\``)
           return null
         }
         this.messageSent[message] = true
@@ -634,7 +634,7 @@ class ProtocolResolver {
         const index = indexByName(this.vars, name)
         if (index < 0) {
           if (this.names.get(name)?.what === 'variable') return null
-          ctx.error(node.getChild('Identifier')!, `unknown variable \`${name}\`${didYouMean(name, this.vars.map((v) => v.name))}; declare it with \`state ${name}[peer]: TYPE = INIT\``)
+          ctx.error(node.getChild('Identifier')!, `unknown variable \`${name}\`${didYouMean(name, namesOf(this.vars))}; declare it with \`state ${name}[peer]: TYPE = INIT\``)
           return null
         }
         const binder = this.peerIndex(node, scope, this.vars[index])
@@ -785,9 +785,7 @@ class ProtocolResolver {
     }
     // A variable whose type was refused is declared without a type: its error says enough.
     if (this.names.get(name)?.what === 'variable') return null
-    const candidates = [
-      ...this.consts.map((x) => x.name), ...this.vars.map((x) => x.name), ...scope.fields.keys(), ...this.labels.keys(),
-    ]
+    const candidates = namesOf(this.consts, this.vars, scope.fields.keys(), this.labels.keys())
     if (indexByName(this.messages, name) >= 0) {
       ctx.error(node, `\`${name}\` is a message, not a value; use \`pending(${name}, q -> p)\` in a property, or a variable here`)
       return null

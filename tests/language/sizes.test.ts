@@ -108,6 +108,19 @@ describe('notebook size and diagnostics (item 14)', () => {
   })
 })
 
+describe('many unknown names among many names (item 14)', () => {
+  test('the first problems are listed with suggestions, the rest counted; suggestions stop within their budget', () => {
+    const n = 5000
+    const text = '```protocol\nprotocol yard {\n  timing asynchronous\n' +
+      Array.from({ length: n }, (_, i) => `  state crate${i}: bool = false\n`).join('') + '  step {\n' +
+      Array.from({ length: n }, (_, i) => `    crate${i} := crat${i}\n`).join('') + '  }\n}\n```\n'
+    const ds = analyzeNotebook(text).diagnostics
+    expect(ds.length).toBe(MAX_DIAGNOSTICS + 1)
+    expect(ds[0].message).toBe('unknown name `crat0` (did you mean `crate0`?); declare it as a constant or a state variable')
+    expect(ds[ds.length - 1].message).toMatch(new RegExp(`^${n - MAX_DIAGNOSTICS} more problems from here on are not listed`))
+  })
+})
+
 /** `x := E` nested `levels` deep in parentheses inside `ifs` nested `if` statements. */
 function deepProtocol(ifs: number, parens: number): string {
   return '```protocol\nprotocol deep {\n  timing asynchronous\n  state x: 0..3 = 0\n  state b: bool = false\n  step {\n' +

@@ -63,9 +63,8 @@ if (json) {
   for (const c of reduction) {
     console.log(`  ${c.name.padEnd(48)} N=${c.processes}  ${f(c.representatives).padStart(9)} representatives for ${f(c.orbitTotal)} of ${f(c.states)} states  ${c.reducedSeconds.toFixed(2)} s against ${c.unreducedSeconds.toFixed(2)} s = ${c.speedup.toFixed(2)}x`)
   }
-  const pc = parse.cases[0]
   console.log('Parse and check')
-  console.log(`  ${pc.name}: ${pc.lines} lines in ${pc.seconds.toFixed(3)} s = ${f(pc.linesPerSecond)} lines/s (${pc.diagnostics} diagnostics)`)
+  for (const pc of parse.cases) console.log(`  ${pc.name}: ${pc.lines} lines in ${pc.seconds.toFixed(3)} s = ${f(pc.linesPerSecond)} lines/s (${pc.diagnostics} diagnostics)`)
   console.log(`  baseline: ${parse.baseline.name}: ${f(parse.baseline.linesPerSecond)} lines/s`)
   const b = induction.budget
   console.log(`Induction against exploration (lanterns, two-index invariant calm and fresh, ${b} s per size; Z3 loaded in ${induction.solverLoadSeconds.toFixed(2)} s and a first untimed proof at N=2 in ${induction.warmupSeconds.toFixed(2)} s before timing)`)

@@ -49,6 +49,12 @@ export interface RunOptions {
   recomputeEdges?: boolean
   /** Temporal rows: the work budget of translating the negated property (`TRANSLATION_BUDGET` by default). */
   translationBudget?: number
+  /**
+   * Bytes an exploration's states (and recorded edges) may take; past it the row is
+   * `inconclusive`, saying that memory ran out and how many states were reached. Without it only
+   * the runtime's own allocation failures stop a search that way.
+   */
+  memoryBudget?: number
 }
 
 /** The rows of one property of one check: sizes (outer) times constant settings (inner, last sweep item fastest). */

@@ -9,7 +9,8 @@ import { analyzeNotebook } from './language/analyze'
 import { instantiatedText } from './language/instantiate'
 import type { CheckModel, Formula, NotebookModel, PropertyModel, ProtocolModel, Term } from './language/model'
 import { FairGraphRecorder, lassoTicks, systemOf } from './explore/fairgraph'
-import { explore } from './explore/reach'
+import { explore, type ExploreResult } from './explore/reach'
+import { isOutOfMemory } from './explore/stateset'
 import { modelErrorCounterexample, traceCounterexample } from './explore/trace'
 import { fromModel } from './logic/ltl'
 import { checkLtl, negationAutomaton, type System } from './logic/product'
@@ -180,6 +181,13 @@ function runPlainRow(model: NotebookModel, plan: RowPlan, opts: RunOptions): Che
     }
     return finish()
   } catch (e) {
+    if (isOutOfMemory(e)) {
+      // Past the exploration (which reports its own): the temporal product ran out of memory.
+      row.verdict = 'inconclusive'
+      row.complete = false
+      row.note = `memory ran out after ${row.states} states, in the temporal search; check a smaller instance`
+      return finish()
+    }
     row.verdict = 'error'
     row.note = e instanceof ModelSetupError ? e.message : `the check could not be run: ${(e as Error).message}`
     return finish()
@@ -195,7 +203,7 @@ function runPlainRow(model: NotebookModel, plan: RowPlan, opts: RunOptions): Che
  */
 function confirmNoModelErrorsAtTwo(row: CheckRow, protocol: ProtocolModel, constants: number[], limit: number, opts: RunOptions): void {
   const inst = compileInstance(protocol, 2, constants)
-  const r = explore(inst, { limit, shouldStop: opts.shouldStop })
+  const r = explore(inst, { limit, shouldStop: opts.shouldStop, memoryBudget: opts.memoryBudget })
   const cutoff = { ...row.cutoff }
   row.cutoff = cutoff
   if (r.outcome === 'model-error' && r.error && r.trace) {
@@ -211,11 +219,19 @@ function confirmNoModelErrorsAtTwo(row: CheckRow, protocol: ProtocolModel, const
     row.complete = false
     row.note = r.stopped
       ? 'the check was stopped while G_2 was being explored for model errors'
+      : r.memoryHit ? `G_1 satisfies \`${row.property}\`, but memory ran out after ${r.states} states of G_2 while it was explored for model errors`
       : `G_1 satisfies \`${row.property}\`, but G_2 could not be shown free of model errors within the state limit of ${limit} states; raise it with \`limit K states\``
     cutoff.statement = `${cutoff.statement}; not established: G_2 was not fully explored for model errors`
     return
   }
   cutoff.statement = `${cutoff.statement}; G_2 was checked free of model errors (${r.states} states)`
+}
+
+/** Why an exploration did not finish, for the note of an `inconclusive` row. */
+function unfinished(r: ExploreResult, limit: number): string {
+  if (r.stopped) return 'the check was stopped before it finished'
+  if (r.memoryHit) return `memory ran out after ${r.states} states (the store of states needed more than was available); check a smaller instance or give a bound with \`within K states\``
+  return `the state limit of ${limit} states was reached; raise it with \`within K states\``
 }
 
 function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel, check: CheckModel, n: number,
@@ -254,7 +270,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   const reduce = inv !== null && cutoff.applies && cutoff.processes !== null && n - cutoff.processes >= 2 && n - chosen[0].length <= 5
   if (reduce) {
     const fixed = chosen[0]
-    const rr = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: progress, invariant, canonicalize: canonicalizer(inst, fixed) })
+    const rr = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: progress, invariant, canonicalize: canonicalizer(inst, fixed), memoryBudget: opts.memoryBudget })
     if (rr.outcome === 'ok') {
       row.method = 'exploration'
       row.search = 'invariant'
@@ -263,7 +279,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
       row.states = orbitTotal(inst, rr.store.data, rr.states, fixed)
       row.transitions = rr.transitions
       if (!rr.complete) {
-        row.note = rr.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`within K states\``
+        row.note = unfinished(rr, limit)
         return row
       }
       row.verdict = 'holds'
@@ -275,7 +291,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   }
   // The temporal route records the fair graph in the same pass (unless told to save memory).
   const recorder = inv ? undefined : new FairGraphRecorder(inst, opts.recomputeEdges ? 0 : undefined)
-  const r = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: progress, invariant, edges: recorder })
+  const r = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: progress, invariant, edges: recorder, memoryBudget: opts.memoryBudget })
   row.states = r.states
   row.transitions = r.transitions
   row.method = 'exploration'
@@ -303,7 +319,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
     return row
   }
   if (!r.complete) {
-    row.note = r.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`within K states\``
+    row.note = unfinished(r, limit)
     return row
   }
   if (inv) {
@@ -324,7 +340,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
     } catch (e) {
       if (!(e instanceof PropertyFault)) throw e
       // An atom divides by zero on a reachable state: find the shortest trace to such a state.
-      const again = explore(inst, { limit, shouldStop: opts.shouldStop, invariant: (w, o) => { for (const t of compiled) t(w, o); return true } })
+      const again = explore(inst, { limit, shouldStop: opts.shouldStop, invariant: (w, o) => { for (const t of compiled) t(w, o); return true }, memoryBudget: opts.memoryBudget })
       if (!again.error || !again.trace) throw e
       row.verdict = 'violated'
       row.complete = false

@@ -12,9 +12,14 @@ import type { EdgeRecorder, ExploreResult } from './reach'
 import type { StateStore } from './stateset'
 
 /**
- * Fairness sets (semantics.md) as transition marks: bit i, process i steps or is crashed; then one
- * bit per channel j->i: i is crashed, or the channel is empty at the source, or i receives from it
- * in the tick; last, under eventually synchronous, the edge ends in a stable state.
+ * Fairness sets (semantics.md) as transition marks: bit i, process i steps or is down (crashed in
+ * this tick or before); then one bit per channel j->i: i is down, or the channel is empty at the
+ * source, or i receives from it in the tick; last, under eventually synchronous, the edge ends in
+ * a stable state. "Down" is judged at the target for both kinds of bit, so the tick in which i
+ * crashes carries i's process bit and the bits of every channel into i. (Which of the two it
+ * carries cannot change a verdict: a crash edge lies on no cycle, since a crashed process never
+ * comes back, and acceptance only counts edges taken infinitely often. The marks are kept equal
+ * to the reference interpreter's all the same: tests/explore/fairgraph.test.ts compares them.)
  */
 export interface FairMarks {
   fairnessSets: number
@@ -38,6 +43,11 @@ export function fairMarks(inst: Instance): FairMarks {
   // The mark of the channel with each index, so an edge reads only the channels that delivered.
   const markOfIndex = new Int32Array(Math.max(1, channels.length))
   for (const c of channels) markOfIndex[c.index] = 1 << c.bit
+  // Per process i: its own mark and the marks of every channel into it. A process that is down at
+  // the end of a tick (crashed in it or before) meets all of them on that tick's edges.
+  const downMarks = new Int32Array(Math.max(1, n))
+  for (let i = 0; i < n; i++) downMarks[i] = 1 << i
+  for (const c of channels) downMarks[c.i] |= 1 << c.bit
   const stab = inst.protocol.timing.kind === 'eventually synchronous' ? isStable(inst) : null
   const fairnessSets = n + channels.length + (stab ? 1 : 0)
   return {
@@ -51,7 +61,7 @@ export function fairMarks(inst: Instance): FairMarks {
     edgeMarks(base, dst, dstOff, stepped, receivedFrom) {
       let m = base | stepped
       for (let rest = receivedFrom; rest !== 0; rest &= rest - 1) m |= markOfIndex[31 - Math.clz32(rest & -rest)]
-      for (let i = 0; i < n; i++) if (!((m >> i) & 1) && crashed[i](dst, dstOff)) m |= 1 << i
+      for (let i = 0; i < n; i++) if ((m & downMarks[i]) !== downMarks[i] && crashed[i](dst, dstOff)) m |= downMarks[i]
       if (stab && stab(dst, dstOff)) m |= 1 << (fairnessSets - 1)
       return m
     },
@@ -146,6 +156,11 @@ export class FairGraphRecorder implements EdgeRecorder {
   constructor(inst: Instance, private readonly budget = RECORD_EDGE_BUDGET) {
     this.fm = fairMarks(inst)
     if (budget <= 0) this.abandon()
+  }
+
+  /** Bytes held by the edges recorded so far. */
+  get bytes(): number {
+    return this.start ? this.start.bytes + this.target.bytes + this.marks.bytes : 0
   }
 
   /** Whether the budget was exceeded (nothing is kept then). */

@@ -9,7 +9,7 @@ import { canonicalState } from '../model/decode'
 import { PropertyFault, type ModelError } from '../model/errors'
 import type { ExpansionBound } from '../model/expansion'
 import type { Instance } from '../model/instance'
-import { StateStore } from './stateset'
+import { isOutOfMemory, StateStore } from './stateset'
 
 /** Progress of a running exploration (reported at most every 100 ms). */
 export interface ExploreProgress {
@@ -24,6 +24,8 @@ export interface ExploreProgress {
  * so a graph can be recorded in the same pass. Not for reduced explorations.
  */
 export interface EdgeRecorder {
+  /** Bytes held by what is recorded so far (counted against `memoryBudget`). */
+  readonly bytes?: number
   /** Source `index` (held in src[0..words)) is about to be expanded. */
   beginSource(index: number, src: Uint32Array): void
   /** One successor of the current source: its store index and what `successors` reported. */
@@ -55,6 +57,12 @@ export interface ExploreOptions {
   continueOnError?: boolean
   /** Records every edge during the search (see `EdgeRecorder`); incompatible with `canonicalize`. */
   edges?: EdgeRecorder
+  /**
+   * Bytes the state store (arena and hash table) and the recorded edges may take. Past it, or
+   * when the runtime refuses an allocation, the search stops (`memoryHit`, incomplete) with the
+   * states found so far. Default: no budget of its own (allocation failures are still caught).
+   */
+  memoryBudget?: number
 }
 
 export interface ExploreResult {
@@ -66,6 +74,8 @@ export interface ExploreResult {
   complete: boolean
   stopped: boolean
   limitHit: boolean
+  /** True when the search stopped because memory ran out (the budget, or a refused allocation). */
+  memoryHit: boolean
   outcome: 'ok' | 'violation' | 'model-error'
   /** Store indices from an initial state to the violating state, or to the state whose step erred (null under reduction). */
   trace: number[] | null
@@ -129,6 +139,8 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
   const limit = opts.limit ?? Infinity
   const invariant = opts.invariant
   const store = new StateStore(W, 1024)
+  const budget = opts.memoryBudget ?? Infinity
+  let memoryHit = false
   const levelStart: number[] = [0]
   let transitions = 0
   let halted = false
@@ -160,14 +172,25 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
     halted = true
     return false
   }
-  for (let off = 0; off < init.length && !halted; off += W) {
-    if (store.lookup(init, off) >= 0) continue
-    if (store.size >= limit) {
-      limitHit = halted = true
-      break
+  // The recorder's bytes are counted with the store's: the store's budget is what is left.
+  const recorded = (): number => (rec?.bytes ?? 0)
+  const outOfMemory = (e: unknown): void => {
+    if (!isOutOfMemory(e)) throw e
+    memoryHit = halted = true
+  }
+  try {
+    store.budget = budget
+    for (let off = 0; off < init.length && !halted; off += W) {
+      if (store.lookup(init, off) >= 0) continue
+      if (store.size >= limit) {
+        limitHit = halted = true
+        break
+      }
+      const idx = store.insert(init, off)
+      if (invariant) check(init, off, idx)
     }
-    const idx = store.insert(init, off)
-    if (invariant) check(init, off, idx)
+  } catch (e) {
+    outOfMemory(e)
   }
 
   const seen = new TargetSet()
@@ -216,9 +239,15 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
     store.get(head, src, 0)
     seen.reset()
     if (raw) raw.clear()
-    if (rec) rec.beginSource(head, src)
     bound.room = limit - store.size
-    const err = inst.successors(src, 0, emit, bound)
+    let err: ModelError | null
+    try {
+      if (rec) rec.beginSource(head, src)
+      err = inst.successors(src, 0, emit, bound)
+    } catch (e) {
+      outOfMemory(e)
+      break
+    }
     if (bound.interrupted) {
       stopped = halted = true
       break
@@ -232,6 +261,14 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
     if (++sinceCheck >= 64 || transitions - transitionsAtCheck >= 4096) {
       sinceCheck = 0
       transitionsAtCheck = transitions
+      if (rec && budget !== Infinity) {
+        const left = budget - recorded()
+        if (store.bytes > left) {
+          memoryHit = halted = true
+          break
+        }
+        store.budget = left
+      }
       if (opts.shouldStop && opts.shouldStop()) {
         stopped = halted = true
         break
@@ -260,7 +297,7 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
   }
   const seconds = (performance.now() - t0) / 1000
   return {
-    states: store.size, transitions, complete: !halted, stopped, limitHit, outcome, trace, error, store, seconds,
+    states: store.size, transitions, complete: !halted, stopped, limitHit, memoryHit, outcome, trace, error, store, seconds,
     bytesPerState: store.size > 0 ? store.bytes / store.size : 0,
   }
 }

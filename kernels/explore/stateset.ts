@@ -22,6 +22,23 @@ export function hashWords(src: Uint32Array, off: number, words: number): number 
   return h >>> 0
 }
 
+/** Thrown by a `StateStore` that would grow past its memory budget (nothing is changed then). */
+export class MemoryExhausted extends Error {
+  constructor(readonly bytes: number, readonly budget: number) {
+    super(`the state store would need ${bytes} bytes, more than its budget of ${budget}`)
+  }
+}
+
+/**
+ * True for a failure to allocate memory: a budget reached, or the runtime refusing a typed array
+ * or an array ("Array buffer allocation failed", "Invalid typed array length", "Invalid array
+ * length"). Other RangeErrors (a deep recursion, a bug) are not memory and are not caught as such.
+ */
+export function isOutOfMemory(e: unknown): boolean {
+  if (e instanceof MemoryExhausted) return true
+  return e instanceof RangeError && /allocation failed|invalid (typed )?array( buffer)? length|out of memory/i.test(e.message)
+}
+
 /**
  * An insertion-ordered set of fixed-width packed states. `insert` returns the state's index (new
  * states get `size` before the call, so `idx === sizeBefore` tells a new one); `lookup` returns -1
@@ -34,6 +51,11 @@ export class StateStore {
   /** index + 1 of the state in each slot, 0 for an empty slot. */
   private table: Int32Array
   private mask: number
+  /**
+   * Bytes the arena and the table may take together; growing past it throws `MemoryExhausted`
+   * before anything is allocated or changed.
+   */
+  budget = Infinity
 
   constructor(readonly words: number, capacity = 1024) {
     const cap = Math.max(16, capacity)
@@ -85,17 +107,28 @@ export class StateStore {
       slot = (slot + 1) & this.mask
     }
     const idx = this.size
+    // The table doubles when this state takes it past three quarters: the budget must allow it.
+    const rehashing = (idx + 1) * 4 > this.table.length * 3
     if ((idx + 1) * w > a.length) {
       // Growth by half keeps the unused tail of the arena small (memory is a stated target).
-      const next = new Uint32Array(Math.max(a.length + w, Math.ceil((a.length / w) * 1.5) * w))
+      const cells = Math.max(a.length + w, Math.ceil((a.length / w) * 1.5) * w)
+      const need = this.bytes + (cells - a.length) * 4 + (rehashing ? this.table.byteLength * 2 : 0)
+      if (need > this.budget) throw new MemoryExhausted(need, this.budget)
+      const next = new Uint32Array(cells)
       next.set(a)
       this.arena = a = next
     }
+    else if (rehashing && this.bytes + this.table.byteLength * 2 > this.budget) {
+      throw new MemoryExhausted(this.bytes + this.table.byteLength * 2, this.budget)
+    }
+    // The larger table is allocated before the state is added, so that a refused allocation
+    // leaves the set as it was.
+    const bigger = rehashing ? new Int32Array(this.table.length * 2) : null
     const base = idx * w
     for (let k = 0; k < w; k++) a[base + k] = src[off + k]
     this.table[slot] = idx + 1
     this.size = idx + 1
-    if (this.size * 4 > this.table.length * 3) this.rehash()
+    if (bigger) this.rehash(bigger)
     return idx
   }
 
@@ -117,8 +150,7 @@ export class StateStore {
     this.size = 0
   }
 
-  private rehash(): void {
-    const t = new Int32Array(this.table.length * 2)
+  private rehash(t: Int32Array): void {
     const mask = t.length - 1
     const w = this.words
     const a = this.arena

@@ -8,12 +8,14 @@ import { protocolProblems, termProblems } from './bounds'
 import { isModelValue, MAX_PROCESSES, MAX_SWEEP_ROWS, MAX_SWEEP_VALUES, MAX_TEMPORAL_PROCESSES } from './limits'
 import type { CheckModel, Formula, PropertyModel, ProtocolModel, Span, SweepItem, Term } from './model'
 import { DeclaredProperty, resolveProperty } from './property'
-import { didYouMean } from './suggest'
+import { didYouMean, namesOf } from './suggest'
 
 /** What a check can see: what is defined above it, and what is defined anywhere (for messages). */
 export interface CheckScope {
   protocols: Map<string, { index: number; model: ProtocolModel; broken: boolean; from: number }>
   properties: Map<string, { decl: DeclaredProperty; from: number }>
+  /** Names declared in blocks that could not be read (nested too deeply): their error says enough. */
+  unreadable?: Set<string>
 }
 
 function signed(node: SyntaxNode, ctx: BlockContext): number {
@@ -178,6 +180,7 @@ export function resolveCheck(node: SyntaxNode, ctx: BlockContext, scope: CheckSc
   const pname = ctx.text(protoNode)
   const proto = scope.protocols.get(pname)
   if (!proto) {
+    if (scope.unreadable?.has(pname)) return null
     ctx.error(protoNode, `unknown protocol \`${pname}\`${didYouMean(pname, scope.protocols.keys())}; define it in a protocol block above this check`)
     return null
   }
@@ -194,6 +197,7 @@ export function resolveCheck(node: SyntaxNode, ctx: BlockContext, scope: CheckSc
     if (seen.has(name)) { ctx.error(n, `property \`${name}\` is listed twice in this check; list it once`); ok = false; continue }
     seen.add(name)
     if (!p) {
+      if (scope.unreadable?.has(name)) { ok = false; continue }
       ctx.error(n, `unknown property \`${name}\`${didYouMean(name, scope.properties.keys())}; define it in a property block above this check`)
       ok = false
       continue
@@ -232,7 +236,7 @@ export function resolveCheck(node: SyntaxNode, ctx: BlockContext, scope: CheckSc
     const cname = ctx.text(cid)
     const constIndex = protocol.consts.findIndex((c) => c.name === cname)
     if (constIndex < 0) {
-      ctx.error(cid, `protocol \`${pname}\` has no constant \`${cname}\`${didYouMean(cname, protocol.consts.map((c) => c.name))}; sweep one of its constants`)
+      ctx.error(cid, `protocol \`${pname}\` has no constant \`${cname}\`${didYouMean(cname, namesOf(protocol.consts))}; sweep one of its constants`)
       ok = false
       continue
     }

@@ -1,7 +1,9 @@
 // The state a block's resolver carries: where the block sits, and the diagnostics found so far.
 import type { SyntaxNode } from '@lezer/common'
 import type { BlockRef, Diagnostic, Span } from './model'
+import { MAX_DIAGNOSTICS } from './limits'
 import type { LineMap } from './positions'
+import { budgetSuggestions } from './suggest'
 
 /** Resolution context of one formal block: maps tree nodes to notebook spans and collects diagnostics. */
 export class BlockContext {
@@ -31,6 +33,14 @@ export class BlockContext {
 
   private report(severity: Diagnostic['severity'], at: SyntaxNode | Span | { from: number; to: number }, message: string): void {
     const span = 'line' in at ? at : this.span(at)
+    if (this.diagnostics.length >= MAX_DIAGNOSTICS) {
+      // Nothing more is listed: suggestions for it would be wasted work.
+      budgetSuggestions(0)
+      const o = overflow.get(this.diagnostics)
+      if (o) o.count++
+      else overflow.set(this.diagnostics, { count: 1, first: span })
+      return
+    }
     // Messages quote source text; a diagnostic is one line, so quoted line breaks are folded.
     this.diagnostics.push({ ...span, severity, message: message.replace(/\s*\n\s*/g, ' ') })
   }
@@ -41,4 +51,14 @@ export function children(node: SyntaxNode): SyntaxNode[] {
   const out: SyntaxNode[] = []
   for (let c = node.firstChild; c; c = c.nextSibling) out.push(c)
   return out
+}
+
+const overflow = new WeakMap<Diagnostic[], { count: number; first: Span }>()
+
+/**
+ * Diagnostics not kept in a list because it reached MAX_DIAGNOSTICS: how many, and where the first
+ * of them was; null when none was dropped.
+ */
+export function droppedDiagnostics(list: Diagnostic[]): { count: number; first: Span } | null {
+  return overflow.get(list) ?? null
 }

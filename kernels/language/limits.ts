@@ -49,6 +49,25 @@ export const MAX_MESSAGE_VALUES = 1 << 16
  */
 export const MAX_SAFE = Number.MAX_SAFE_INTEGER
 
+/**
+ * The longest notebook read, in UTF-16 code units (4 MiB): analysis is linear, but a bigger
+ * notebook would still take seconds and hundreds of megabytes in the editor and the checker.
+ */
+export const MAX_NOTEBOOK_CHARS = 4 * 1024 * 1024
+
+/** The most labels one enum type may list (a range type serves for more values). */
+export const MAX_ENUM_LABELS = 100_000
+
+/**
+ * The deepest nesting of parentheses, operators, calls, aggregates, quantifiers, `if` and `for`
+ * in one block. The parser's own depth guards break far deeper input into spurious errors; this
+ * bound keeps every tree well inside them (and the checker's recursion shallow).
+ */
+export const MAX_NESTING = 100
+
+/** The most diagnostics a notebook reports; the last one says how many more there were. */
+export const MAX_DIAGNOSTICS = 1000
+
 /** True when `v` is an integer that a model may hold. */
 export function isModelValue(v: number): boolean {
   return Number.isInteger(v) && v >= MIN_VALUE && v <= MAX_VALUE

@@ -6,8 +6,8 @@ import type { SyntaxNode } from '@lezer/common'
 import { BlockContext, children } from './context'
 import type { Formula, ProcRef, PropertyModel, ProtocolModel, Span, Term } from './model'
 import { binaryOperator, expressionChildren } from './protocol'
-import { BOOL, INT, sameSort, Sort, sortName, sortOf } from './sorts'
-import { didYouMean } from './suggest'
+import { BOOL, indexByName, INT, labelIndex, sameSort, Sort, sortName, sortOf } from './sorts'
+import { didYouMean, namesOf } from './suggest'
 import { MAX_ATOMS } from '../logic/ltl'
 
 /** A declared property with the syntax it was written in, resolved later per check. */
@@ -207,26 +207,25 @@ class PropertyResolver {
         return a ? { t: { k: 'neg', arg: a, span }, sort: INT } : null
       }
       case 'VarRef': {
-        const c = this.protocol.consts.findIndex((x) => x.name === text)
+        const c = indexByName(this.protocol.consts, text)
         if (c >= 0) return { t: { k: 'const', index: c, span }, sort: INT }
-        const enums = this.protocol.vars.map((v) => v.type).concat(this.protocol.messages.flatMap((m) => m.fields.map((f) => f.type)))
-          .filter((t) => t.k === 'enum' && t.labels.includes(text)).map((t) => sortOf(t))
+        const enums = enumSortsOf(this.protocol).get(text) ?? []
         if (enums.length > 0) {
-          const sort = enums.find((s) => expected && sameSort(s, expected)) ?? enums[0]
-          return { t: { k: 'lit', value: (sort as { labels: readonly string[] }).labels.indexOf(text), span }, sort }
+          const sort = expected?.k === 'enum' && labelIndex(expected.labels, text) >= 0 ? expected : enums[0]
+          return { t: { k: 'lit', value: labelIndex((sort as { labels: readonly string[] }).labels, text), span }, sort }
         }
         if (this.decl.vars.includes(text)) return this.error(node, `\`${text}\` is a process, not a value; write one of its variables, as in \`${text}.x\``)
         if (this.protocol.vars.some((v) => v.name === text)) return this.error(node, `\`${text}\` does not say whose variable it is; write it as \`p.${text}\``)
-        return this.error(node, `unknown name \`${text}\` in property \`${this.decl.name}\`${didYouMean(text, this.protocol.consts.map((c) => c.name))}, for ${this.against}; use a constant, a label or \`p.x\``)
+        return this.error(node, `unknown name \`${text}\` in property \`${this.decl.name}\`${didYouMean(text, namesOf(this.protocol.consts))}, for ${this.against}; use a constant, a label or \`p.x\``)
       }
       case 'Member': {
         const parts = children(node).filter((c) => c.name === 'Identifier' || c.name === 'ProcNumber')
         const proc = this.proc(parts[0])
         const vname = ctx.text(parts[1])
-        const index = this.protocol.vars.findIndex((v) => v.name === vname)
+        const index = indexByName(this.protocol.vars, vname)
         if (!proc) return null
         if (index < 0) {
-          return this.error(parts[1], `${this.against} has no variable \`${vname}\`${didYouMean(vname, this.protocol.vars.map((v) => v.name))}; property \`${this.decl.name}\` can only mention its state variables`)
+          return this.error(parts[1], `${this.against} has no variable \`${vname}\`${didYouMean(vname, namesOf(this.protocol.vars))}; property \`${this.decl.name}\` can only mention its state variables`)
         }
         const v = this.protocol.vars[index]
         const peerNode = parts[2]
@@ -243,8 +242,8 @@ class PropertyResolver {
       case 'Pending': {
         const ids = children(node).filter((c) => c.name === 'Identifier' || c.name === 'ProcNumber')
         const mname = ctx.text(ids[0])
-        const message = this.protocol.messages.findIndex((m) => m.name === mname)
-        if (message < 0) return this.error(ids[0], `${this.against} has no message \`${mname}\`${didYouMean(mname, this.protocol.messages.map((m) => m.name))}; name one of its messages`)
+        const message = indexByName(this.protocol.messages, mname)
+        if (message < 0) return this.error(ids[0], `${this.against} has no message \`${mname}\`${didYouMean(mname, namesOf(this.protocol.messages))}; name one of its messages`)
         const from = this.proc(ids[1])
         const to = this.proc(ids[2])
         if (!from || !to) return null
@@ -302,4 +301,32 @@ class PropertyResolver {
     if (t.sort.k !== 'int') return this.error(node, `expected an integer here, but \`${this.ctx.text(node)}\` is ${sortName(t.sort)}`)
     return t.t
   }
+}
+
+const enumSorts = new WeakMap<ProtocolModel, Map<string, Sort[]>>()
+
+/**
+ * The enum sorts of a protocol by label: every enum type of its variables, then of its message
+ * fields, each distinct enum once, in that order (built once per protocol, so a label costs one
+ * lookup however many variables there are).
+ */
+function enumSortsOf(protocol: ProtocolModel): Map<string, Sort[]> {
+  let map = enumSorts.get(protocol)
+  if (map) return map
+  map = new Map()
+  const seen = new Set<readonly string[]>()
+  const types = protocol.vars.map((v) => v.type).concat(protocol.messages.flatMap((m) => m.fields.map((f) => f.type)))
+  for (const t of types) {
+    if (t.k !== 'enum' || seen.has(t.labels)) continue
+    seen.add(t.labels)
+    const sort = sortOf(t)
+    for (const l of t.labels) {
+      const list = map.get(l)
+      // Distinct arrays are distinct enums: the checker interns equal ones.
+      if (!list) map.set(l, [sort])
+      else list.push(sort)
+    }
+  }
+  enumSorts.set(protocol, map)
+  return map
 }

@@ -9,8 +9,9 @@ import type {
   Timing, Type, VarDecl,
 } from './model'
 import { protocolProblems } from './bounds'
-import { BOOL, ConstantError, evalConstant, INT, sameSort, Sort, sortName, sortOf } from './sorts'
-import { didYouMean } from './suggest'
+import { BOOL, ConstantError, evalConstant, indexByName, INT, internLabels, labelIndex, labelWork, sameSort, Sort, sortName, sortOf } from './sorts'
+import { MAX_ENUM_LABELS } from './limits'
+import { didYouMean, namesOf } from './suggest'
 
 /** Node names that are expressions in the grammar. */
 export const EXPRESSION_NODES = new Set([
@@ -67,12 +68,15 @@ class ProtocolResolver {
   private messageSent: boolean[] = []
   private vars: VarDecl[] = []
   private handlers: Handler[] = []
+  private handlerOf = new Map<number, Handler>()
   private step: Stmt[] = []
   private binders: Binder[] = []
   private timing: Timing | null = null
   private faults: 'none' | 'crash' = 'none'
   private broken = false
+  /** Each label's enum sorts, one per distinct enum (so lists stay short and shared). */
   private labels = new Map<string, Sort[]>()
+  private enumPool = new Map<string, readonly string[]>()
   private names = new Map<string, { what: string; span: Span }>()
 
   constructor(private readonly node: SyntaxNode, private readonly ctx: BlockContext) {}
@@ -192,21 +196,32 @@ class ProtocolResolver {
     if (node.name === 'BoolType') return { k: 'bool' }
     if (node.name === 'EnumType') {
       const ids = node.getChildren('Identifier')
-      const labels: string[] = []
+      const fresh: string[] = []
+      const seen = new Set<string>()
       for (const id of ids) {
         const l = ctx.text(id)
-        if (labels.includes(l)) { ctx.error(id, `enum label \`${l}\` appears twice in ${what}; remove one`); return null }
+        labelWork.steps++
+        if (seen.has(l)) { ctx.error(id, `enum label \`${l}\` appears twice in ${what}; remove one`); return null }
         if (this.names.has(l)) { ctx.error(id, `enum label \`${l}\` is already declared as a ${this.names.get(l)!.what}; choose another label`); return null }
-        labels.push(l)
+        if (fresh.length === MAX_ENUM_LABELS) {
+          ctx.error(id, `the enum type of ${what} has more than ${MAX_ENUM_LABELS} labels, the most an enum may have; use a range type for this many values`)
+          return null
+        }
+        seen.add(l)
+        fresh.push(l)
       }
-      if (labels.length === 0) { ctx.error(node, `the enum type of ${what} has no labels; list them as \`{a, b}\``); return null }
-      const sort: Sort = { k: 'enum', labels }
-      for (const l of labels) {
-        const list = this.labels.get(l) ?? []
-        if (!list.some((s) => sameSort(s, sort))) list.push(sort)
-        this.labels.set(l, list)
+      if (fresh.length === 0) { ctx.error(node, `the enum type of ${what} has no labels; list them as \`{a, b}\``); return null }
+      // Equal enums share one labels array, so that they compare by identity (sameSort).
+      const labels = internLabels(this.enumPool, fresh)
+      if (labels === fresh) {
+        const sort: Sort = { k: 'enum', labels }
+        for (const l of labels) {
+          const list = this.labels.get(l)
+          if (!list) this.labels.set(l, [sort])
+          else list.push(sort)
+        }
       }
-      return { k: 'enum', labels }
+      return { k: 'enum', labels: labels as string[] }
     }
     // RangeType
     const scope: Scope = { constOnly: true, binders: new Map(), fields: new Map(), what: 'a type bound' }
@@ -232,18 +247,19 @@ class ProtocolResolver {
     const { ctx } = this
     const id = d.getChild('Identifier')!
     const name = ctx.text(id)
-    if (this.messages.some((m) => m.name === name)) {
+    if (indexByName(this.messages, name) >= 0) {
       ctx.error(id, `message \`${name}\` is declared twice; remove one declaration`)
       return
     }
     const fields: FieldDecl[] = []
+    const fieldNames = new Set<string>()
     for (const f of d.getChild('FieldList')?.getChildren('FieldDecl') ?? []) {
       const fid = f.getChild('Identifier')!
       const fname = ctx.text(fid)
-      if (fields.some((x) => x.name === fname)) { ctx.error(fid, `message \`${name}\` has two fields named \`${fname}\`; rename one`); continue }
+      if (fieldNames.has(fname)) { ctx.error(fid, `message \`${name}\` has two fields named \`${fname}\`; rename one`); continue }
       const tnode = children(f).find((c) => c.name === 'BoolType' || c.name === 'RangeType' || c.name === 'EnumType')
       const type = tnode ? this.type(tnode, `field \`${fname}\``) : null
-      if (type) fields.push({ name: fname, type, span: ctx.span(fid) })
+      if (type) { fields.push({ name: fname, type, span: ctx.span(fid) }); fieldNames.add(fname) }
       else return
     }
     this.messages.push({ name, fields, span: ctx.span(id) })
@@ -361,12 +377,12 @@ class ProtocolResolver {
     // A handler broken by a syntax error is read only when its shape survived the recovery.
     if (!peerNode || !d.getChild('Block') || !d.getChild('from')) return
     const msgName = ctx.text(msgNode)
-    const message = this.messages.findIndex((m) => m.name === msgName)
+    const message = indexByName(this.messages, msgName)
     if (message < 0) {
-      ctx.error(msgNode, `unknown message \`${msgName}\`${didYouMean(msgName, this.messages.map((m) => m.name))}; declare it with \`message ${msgName}\``)
+      ctx.error(msgNode, `unknown message \`${msgName}\`${didYouMean(msgName, namesOf(this.messages))}; declare it with \`message ${msgName}\``)
       return
     }
-    const prior = this.handlers.find((h) => h.message === message)
+    const prior = this.handlerOf.get(message)
     if (prior) {
       ctx.error(msgNode, `message \`${msgName}\` already has a handler at line ${prior.span.line}; merge the two handlers into one`)
       return
@@ -393,7 +409,9 @@ class ProtocolResolver {
     if (peer === null) return
     const binders = new Map([[ctx.text(peerNode), peer]])
     const body = this.block(d.getChild('Block')!, { constOnly: false, binders, fields })
-    this.handlers.push({ message, binder: peer, fieldNames, body, span: ctx.span(msgNode) })
+    const h: Handler = { message, binder: peer, fieldNames, body, span: ctx.span(msgNode) }
+    this.handlers.push(h)
+    this.handlerOf.set(message, h)
   }
 
   private bindPeer(node: SyntaxNode, bound: Map<string, number>): number | null {
@@ -426,11 +444,13 @@ class ProtocolResolver {
     const { ctx } = this
     const id = node.getChild('Identifier')!
     const name = ctx.text(id)
-    const index = this.vars.findIndex((v) => v.name === name)
+    const index = indexByName(this.vars, name)
     if (index < 0) {
       const what = this.names.get(name)?.what ?? (scope.fields.has(name) ? 'message field' : scope.binders.has(name) ? 'peer' : null)
+      // A variable whose type was refused is declared without a type: its error says enough.
+      if (what === 'variable') return null
       if (what) ctx.error(id, `\`${name}\` is a ${what} and cannot be assigned; assign a state variable`)
-      else ctx.error(id, `unknown variable \`${name}\`${didYouMean(name, this.vars.map((v) => v.name))}; declare it with \`state ${name}: TYPE = INIT\``)
+      else ctx.error(id, `unknown variable \`${name}\`${didYouMean(name, namesOf(this.vars))}; declare it with \`state ${name}: TYPE = INIT\``)
       return null
     }
     const v = this.vars[index]
@@ -532,9 +552,9 @@ class ProtocolResolver {
         const ids = s.getChildren('Identifier')
         const msgNode = ids[0]
         const name = ctx.text(msgNode)
-        const message = this.messages.findIndex((m) => m.name === name)
+        const message = indexByName(this.messages, name)
         if (message < 0) {
-          ctx.error(msgNode, `unknown message \`${name}\`${didYouMean(name, this.messages.map((m) => m.name))}; declare it with \`message ${name}\``)
+          ctx.error(msgNode, `unknown message \`${name}\`${didYouMean(name, namesOf(this.messages))}; declare it with \`message ${name}\``)
           return null
         }
         this.messageSent[message] = true
@@ -611,9 +631,10 @@ class ProtocolResolver {
       case 'IndexRef': {
         if (scope.constOnly) { ctx.error(node, `${scope.what} must be a constant expression, and \`${ctx.text(node)}\` is a variable; use constants and literals only`); return null }
         const name = ctx.text(node.getChild('Identifier')!)
-        const index = this.vars.findIndex((v) => v.name === name)
+        const index = indexByName(this.vars, name)
         if (index < 0) {
-          ctx.error(node.getChild('Identifier')!, `unknown variable \`${name}\`${didYouMean(name, this.vars.map((v) => v.name))}; declare it with \`state ${name}[peer]: TYPE = INIT\``)
+          if (this.names.get(name)?.what === 'variable') return null
+          ctx.error(node.getChild('Identifier')!, `unknown variable \`${name}\`${didYouMean(name, namesOf(this.vars))}; declare it with \`state ${name}[peer]: TYPE = INIT\``)
           return null
         }
         const binder = this.peerIndex(node, scope, this.vars[index])
@@ -734,12 +755,12 @@ class ProtocolResolver {
       ctx.error(node, `\`${name}\` names a peer, not a value; use it as an index, as in \`x[${name}]\``)
       return null
     }
-    const c = this.consts.findIndex((x) => x.name === name)
+    const c = indexByName(this.consts, name)
     if (c >= 0) {
       this.constUsed[c] = true
       return { e: { k: 'const', index: c, span }, sort: INT }
     }
-    const v = this.vars.findIndex((x) => x.name === name)
+    const v = indexByName(this.vars, name)
     if (v >= 0) {
       if (scope.constOnly) {
         ctx.error(node, `${scope.what} must be a constant expression, and \`${name}\` is a variable; use constants and literals only`)
@@ -753,17 +774,19 @@ class ProtocolResolver {
     }
     const sorts = this.labels.get(name)
     if (sorts) {
-      const sort = sorts.length === 1 ? sorts[0] : sorts.find((s) => expected && sameSort(s, expected))
+      // The expected enum, when it has this label, is the one meant (one lookup, however many
+      // enums share the label).
+      const sort = sorts.length === 1 ? sorts[0] : expected?.k === 'enum' && labelIndex(expected.labels, name) >= 0 ? expected : undefined
       if (!sort) {
         ctx.error(node, `the label \`${name}\` belongs to several enum types; compare it with a variable of the type you mean`)
         return null
       }
-      return { e: { k: 'lit', value: (sort as { labels: readonly string[] }).labels.indexOf(name), span }, sort }
+      return { e: { k: 'lit', value: labelIndex((sort as { labels: readonly string[] }).labels, name), span }, sort }
     }
-    const candidates = [
-      ...this.consts.map((x) => x.name), ...this.vars.map((x) => x.name), ...scope.fields.keys(), ...this.labels.keys(),
-    ]
-    if (this.messages.some((m) => m.name === name)) {
+    // A variable whose type was refused is declared without a type: its error says enough.
+    if (this.names.get(name)?.what === 'variable') return null
+    const candidates = namesOf(this.consts, this.vars, scope.fields.keys(), this.labels.keys())
+    if (indexByName(this.messages, name) >= 0) {
       ctx.error(node, `\`${name}\` is a message, not a value; use \`pending(${name}, q -> p)\` in a property, or a variable here`)
       return null
     }

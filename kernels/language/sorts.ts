@@ -12,15 +12,80 @@ export function sortOf(type: Type): Sort {
   return type.k === 'range' ? INT : type.k === 'bool' ? BOOL : { k: 'enum', labels: type.labels }
 }
 
+/**
+ * Work done on enum labels (comparisons and index entries), counted so that a test can check that
+ * analysis stays linear in the number of labels without timing anything.
+ */
+export const labelWork = { steps: 0 }
+
 export function sameSort(a: Sort, b: Sort): boolean {
   if (a.k !== b.k) return false
-  if (a.k === 'enum' && b.k === 'enum') return a.labels.length === b.labels.length && a.labels.every((l, i) => l === b.labels[i])
+  if (a.k === 'enum' && b.k === 'enum') {
+    // The checker shares one labels array per distinct enum (see `internLabels`), so this is
+    // nearly always decided by identity; otherwise the first differing label decides.
+    if (a.labels === b.labels) return true
+    if (a.labels.length !== b.labels.length) return false
+    for (let i = 0; i < a.labels.length; i++) {
+      labelWork.steps++
+      if (a.labels[i] !== b.labels[i]) return false
+    }
+  }
   return true
 }
 
+const indexes = new WeakMap<readonly string[], Map<string, number>>()
+
+/** Position of a label in an enum's labels (first occurrence), or -1; one map per labels array. */
+export function labelIndex(labels: readonly string[], label: string): number {
+  let map = indexes.get(labels)
+  if (!map) {
+    map = new Map()
+    for (let i = 0; i < labels.length; i++) if (!map.has(labels[i])) map.set(labels[i], i)
+    labelWork.steps += labels.length
+    indexes.set(labels, map)
+  }
+  return map.get(label) ?? -1
+}
+
+/**
+ * One shared array per distinct list of labels (per `pool`, one per protocol), so that equal
+ * enums compare by identity and each has one label index.
+ */
+export function internLabels(pool: Map<string, readonly string[]>, labels: readonly string[]): readonly string[] {
+  labelWork.steps += labels.length
+  // Labels are identifiers, so a comma cannot occur in one and the key is unambiguous.
+  const key = labels.join(',')
+  const prior = pool.get(key)
+  if (prior) return prior
+  pool.set(key, labels)
+  return labels
+}
+
+const byName = new WeakMap<readonly { name: string }[], { map: Map<string, number>; seen: number }>()
+
+/**
+ * `list.findIndex((x) => x.name === name)` in constant time: a name index per list, extended as
+ * the list grows (the checker's lists of constants, variables and messages only ever grow by push).
+ */
+export function indexByName(list: readonly { name: string }[], name: string): number {
+  let c = byName.get(list)
+  if (!c) {
+    c = { map: new Map(), seen: 0 }
+    byName.set(list, c)
+  }
+  for (; c.seen < list.length; c.seen++) if (!c.map.has(list[c.seen].name)) c.map.set(list[c.seen].name, c.seen)
+  return c.map.get(name) ?? -1
+}
+
+/** Labels shown when an enum is named in a message; longer enums are abbreviated. */
+const SHOWN_LABELS = 8
+
 /** How a sort is named in messages. */
 export function sortName(s: Sort): string {
-  return s.k === 'int' ? 'an integer' : s.k === 'bool' ? 'a boolean' : `one of {${s.labels.join(', ')}}`
+  if (s.k === 'int') return 'an integer'
+  if (s.k === 'bool') return 'a boolean'
+  if (s.labels.length <= SHOWN_LABELS) return `one of {${s.labels.join(', ')}}`
+  return `one of {${s.labels.slice(0, SHOWN_LABELS - 2).join(', ')}, ..., ${s.labels[s.labels.length - 1]}} (${s.labels.length} labels)`
 }
 
 /** Thrown by `evalConstant` when a constant expression cannot be evaluated (division by zero). */

@@ -4,6 +4,7 @@
 import type { SyntaxNode, Tree } from '@lezer/common'
 import { parser } from './parser.js'
 import type { BlockContext } from './context'
+import { MAX_NESTING } from './limits'
 
 /** What a construct is called in messages. */
 const THING: Record<string, string> = {
@@ -159,15 +160,17 @@ function firstToken(text: string): string {
 }
 
 /**
- * Reports every error node of a block's tree. Errors at the same offset are reported once, and an
- * error directly after another (Lezer's recovery often leaves a trail) is folded into it.
+ * Reports every error node of a block's tree (that starts before `before`). Errors at the same
+ * offset are reported once, and an error directly after another (Lezer's recovery often leaves a
+ * trail) is folded into it.
  */
-export function reportSyntaxErrors(tree: Tree, ctx: BlockContext): number {
+export function reportSyntaxErrors(tree: Tree, ctx: BlockContext, before = Infinity): number {
   let count = 0
   let lastEnd = -1
   const text = ctx.block.text
   tree.iterate({
     enter(ref) {
+      if (ref.from >= before) return false
       if (!ref.type.isError) return
       const node = ref.node
       if (node.from <= lastEnd) { lastEnd = Math.max(lastEnd, node.to); return false }
@@ -194,4 +197,50 @@ export function reportSyntaxErrors(tree: Tree, ctx: BlockContext): number {
     },
   })
   return count
+}
+
+/**
+ * The constructs that count as one level of nesting (limits.ts, MAX_NESTING). Between two of them
+ * a tree path has at most one other node (a `Block`, an `ArgList`, a statement), so a block
+ * within the limit is a tree well inside the parser's own depth guards.
+ */
+const LEVEL = new Set([
+  'ParenExpression', 'CallExpression', 'Negation', 'PrefixExpression', 'BinaryExpression', 'IfExpression',
+  'Aggregate', 'Forall', 'IfStatement', 'ElseIf', 'Else', 'ForStatement', 'BoundNegation', 'BoundArithmetic',
+  'ChoiceSet', 'ChoiceRange',
+])
+
+/** Declarations: an error in one says nothing about the nesting of the next. */
+const DECLARATION = new Set([
+  'ConstDecl', 'TimingDecl', 'FaultsDecl', 'MessageDecl', 'StateDecl', 'Handler', 'StepBlock', 'PropertyDecl', 'CheckDecl',
+])
+
+/**
+ * The first construct (in text order) at which a block nests more than MAX_NESTING levels, or
+ * null. Input nested far deeper than that is broken by the parser into spurious errors, but up to
+ * the break the tree is the text's own, so the construct past the limit is found either way. Only
+ * nesting with no syntax error before it in its declaration counts: the parser's repair of broken
+ * input can build deep trees of its own (`x := := x := := ...` becomes a chain of comparisons),
+ * and there the syntax errors are the right report.
+ */
+export function tooDeep(tree: Tree): { from: number; to: number } | null {
+  let depth = 0
+  let errorBefore = false
+  let found: { from: number; to: number } | null = null
+  tree.iterate({
+    enter(ref) {
+      if (found) return false
+      if (ref.type.isError) { errorBefore = true; return }
+      if (DECLARATION.has(ref.name)) errorBefore = false
+      if (!LEVEL.has(ref.name)) return
+      if (++depth > MAX_NESTING && !errorBefore) {
+        found = { from: ref.from, to: ref.from + 1 }
+        return false
+      }
+    },
+    leave(ref) {
+      if (LEVEL.has(ref.name)) depth--
+    },
+  })
+  return found
 }

@@ -1,0 +1,188 @@
+// Temporal checks under symmetry reduction (the annotated quotient: kernels/logic/quotient.ts,
+// kernels/symmetry/temporal.ts). Oracle: the unreduced temporal search on the same instance
+// (explore + FairGraphRecorder + checkLtl, kernels/logic/product.ts), which shares with the
+// quotient only the automaton translation and the fairness marks. First a hand-made quotient in
+// which a cycle swaps two processes (the case a plain quotient gets wrong), then generated
+// protocols at N = 3 and 4, then the runner's rows.
+import { describe, expect, it } from 'vitest'
+import { FairGraphRecorder, systemOf } from '../../kernels/explore/fairgraph'
+import { explore } from '../../kernels/explore/reach'
+import { analyzeNotebook } from '../../kernels/language/analyze'
+import type { Formula, ProtocolModel, PropertyModel, Term } from '../../kernels/language/model'
+import { FALSE, fromModel, type Ltl } from '../../kernels/logic/ltl'
+import { checkLtl, type System } from '../../kernels/logic/product'
+import { checkLtlQuotient, type QuotientSystem } from '../../kernels/logic/quotient'
+import { ModelSetupError, PropertyFault } from '../../kernels/model/errors'
+import { compileInstance, type Instance } from '../../kernels/model/instance'
+import { compileTerm } from '../../kernels/model/observe'
+import { planRows, runRow } from '../../kernels/run'
+import { decideCutoff } from '../../kernels/symmetry/cutoff'
+import { symmetries } from '../../kernels/symmetry/group'
+import { reducedTemporal } from '../../kernels/symmetry/temporal'
+import { generateNotebook, generateProperties } from '../reference/generate'
+import { generateInClass } from './inclass'
+
+describe('the quotient fair-cycle test on a hand-made system', () => {
+  // Two processes, no channels considered (2 fairness sets: process 0 steps, process 1 steps).
+  // Full system: states "turn 0" (A) and "turn 1" (B); in A process 0 steps and the turn passes
+  // (A -> B, marks {0}), in B process 1 steps (B -> A, marks {1}). Its one cycle is fair. Swapping
+  // the processes maps A to B, so the quotient has one representative A with one edge A -> A,
+  // marks {0}, annotated with the swap. Read without the permutation, that cycle only ever lets
+  // process 0 step and looks unfair; with it, the swap's orbit {0, 1} meets the marks.
+  const group = symmetries(2, [], 2)
+  const swap = group.perm(1)[0] === 1 ? 1 : 0
+  const quotient = (perm: number): QuotientSystem => ({
+    initial: () => [0], atoms: () => 0, fairnessSets: 2, states: 1, group,
+    successors(_s, to, p, fair) { to.push(0); p.push(perm); fair.push(1) },
+  })
+  const full: System = {
+    initial: () => [0], atoms: () => 0, fairnessSets: 2, states: 2,
+    successors(s, to, fair) { to.push(1 - s); fair.push(s === 0 ? 1 : 2) },
+  }
+  // `false` fails on every run: it holds iff there is no fair run at all.
+  it('finds the fair cycle that swaps the processes, as the full system has', () => {
+    expect(checkLtl(full, FALSE).holds).toBe(false)
+    expect(checkLtlQuotient(quotient(swap), FALSE).holds).toBe(false)
+  })
+  it('finds no fair cycle when the edge keeps the names (only process 0 ever steps)', () => {
+    // The full system of this quotient: A -> A with marks {0} (and B -> B with {1}, unreachable).
+    const stuck: System = { ...full, successors(s, to, fair) { to.push(s); fair.push(s === 0 ? 1 : 2) } }
+    expect(checkLtl(stuck, FALSE).holds).toBe(true)
+    expect(checkLtlQuotient(quotient(0), FALSE).holds).toBe(true)
+  })
+})
+
+/** Does the formula contain a temporal operator? */
+function temporal(f: Formula): boolean {
+  switch (f.k) {
+    case 'true': case 'false': case 'atom': return false
+    case 'always': case 'eventually': case 'next': case 'until': case 'unless': return true
+    case 'not': return temporal(f.arg)
+    default: return temporal(f.left) || temporal(f.right)
+  }
+}
+
+function atomsOf(f: Formula, out: Term[] = []): Term[] {
+  if (f.k === 'atom') { if (!out.includes(f.term)) out.push(f.term) }
+  else if ('arg' in f) atomsOf(f.arg, out)
+  else if ('left' in f) atomsOf(f.left, out), atomsOf(f.right, out)
+  return out
+}
+
+/**
+ * The unreduced verdict (the oracle), or null when the instance is too big or faults. `polls`
+ * bounds the work deterministically: the explorer polls `shouldStop` after at most 64 states or
+ * 4096 transitions, so the search gives up after about polls x 4096 transitions.
+ */
+function unreduced(inst: Instance, atoms: ReturnType<typeof compileTerm>[], ltl: Ltl, limit: number, polls: number): boolean | null {
+  const rec = new FairGraphRecorder(inst)
+  let left = polls
+  const r = explore(inst, { limit, edges: rec, shouldStop: () => --left < 0 })
+  if (!r.complete || r.outcome !== 'ok') return null
+  try {
+    return checkLtl(systemOf(inst, r, rec.graph(r.states), atoms), ltl).holds
+  } catch (e) {
+    if (e instanceof PropertyFault) return null
+    throw e
+  }
+}
+
+interface Tally { compared: number; holds: number; violated: number; recomputed: number }
+
+/** Compares reduced and unreduced verdicts of `prop` on `protocol` at size n (first assignment). */
+function compare(protocol: ProtocolModel, prop: PropertyModel, n: number, label: string, tally: Tally, limit = 6000, polls = 60): void {
+  if (!temporal(prop.formula) || prop.formula.k === 'always' && !temporal(prop.formula.arg)) return
+  if (n - prop.vars.length < 2) return
+  let inst: Instance
+  try {
+    inst = compileInstance(protocol, n, protocol.consts.map((c) => c.value))
+    if (inst.initialStates().length / inst.words > 64) return
+  } catch (e) {
+    if (e instanceof ModelSetupError) return
+    throw e
+  }
+  const a = prop.vars.map((_, i) => i)
+  const terms = atomsOf(prop.formula)
+  const atoms = terms.map((t) => compileTerm(inst, t, a))
+  const ltl = fromModel(prop.formula, (t) => terms.indexOf(t))
+  const want = unreduced(inst, atoms, ltl, limit, polls)
+  if (want === null) return
+  const recompute = tally.compared % 5 === 4
+  const got = reducedTemporal(inst, a, atoms, ltl, { limit, recomputeEdges: recompute })
+  if (got.kind === 'fallback') return
+  expect(got.kind, label).toBe('decided')
+  if (got.kind !== 'decided') return
+  expect(`${label}: ${got.holds ? 'holds' : 'violated'}`).toBe(`${label}: ${want ? 'holds' : 'violated'}`)
+  tally.compared++
+  if (recompute) tally.recomputed++
+  if (want) tally.holds++
+  else tally.violated++
+}
+
+// Properties whose verdict depends on every unnamed process being treated fairly: p counts the
+// distinct peers it has heard from, so `p.heard = N - 1` needs every other process to step.
+const COUNTING = `protocol tally {
+  timing synchronous(delay: 1, idle: 2)
+  faults FAULTS
+  message ping
+  state seen[peer]: bool = false
+  state heard: 0..3 = 0
+  on ping from q { if not seen[q] { seen[q] := true
+      heard := min(heard + 1, 3) } }
+  step { if heard < 3 { broadcast ping } }
+}`
+
+const COUNTING_PROPERTIES = [
+  'property all = forall p: eventually p.heard = NN',
+  'property first = forall p: eventually p.heard >= 1',
+  'property stays = forall p: eventually always p.heard = NN',
+  'property pairwise = forall p, q: correct(q) implies eventually p.seen[q]',
+  'property late = forall p, q: always (p.seen[q] implies eventually p.heard = NN)',
+  'property never = forall p: always eventually p.heard < NN',
+]
+
+describe('reduced temporal verdicts against unreduced search', () => {
+  it('agrees on the counting protocol at N = 3 and 4, with and without crashes', () => {
+    const tally: Tally = { compared: 0, holds: 0, violated: 0, recomputed: 0 }
+    for (const faults of ['none', 'crash']) {
+      for (const n of [3, 4]) {
+        const props = COUNTING_PROPERTIES.map((p) => p.replaceAll('NN', String(n - 1))).join('\n')
+        const names = COUNTING_PROPERTIES.map((p) => p.split(' ')[1]).join(', ')
+        const nb = analyzeNotebook('```protocol\n' + COUNTING.replace('FAULTS', faults) + '\n```\n\n```property\n' + props +
+          '\n```\n\n```check\ncheck tally: ' + names + ' at N = ' + n + '\n```\n')
+        expect(nb.diagnostics.filter((d) => d.severity === 'error').map((d) => d.message)).toEqual([])
+        for (const prop of nb.checks[0].properties) compare(nb.protocols[0], prop, n, `tally ${faults} ${prop.name} N=${n}`, tally, 200_000, Infinity)
+      }
+    }
+    console.log(`counting protocol: ${JSON.stringify(tally)}`)
+    expect(tally.holds).toBeGreaterThanOrEqual(4)
+    expect(tally.violated).toBeGreaterThanOrEqual(4)
+  })
+
+  it('agrees on generated protocols at N = 3 and 4', () => {
+    const tally: Tally = { compared: 0, holds: 0, violated: 0, recomputed: 0 }
+    for (let seed = 1; seed <= 50; seed++) {
+      for (const text of [generateInClass(seed), generateNotebook(seed)]) {
+        const base = analyzeNotebook(text)
+        const protocol = base.protocols[0]
+        if (!protocol) continue
+        const nb = analyzeNotebook(text + '\n' + generateProperties(protocol, seed))
+        if (nb.diagnostics.some((d) => d.severity === 'error')) continue
+        const props = new Map(nb.checks.flatMap((c) => c.properties).map((p) => [p.name, p]))
+        for (const prop of props.values()) {
+          // Reduction needs the protocol to be symmetric: the runner reduces only where the class
+          // check grants the cutoff, so the test does the same.
+          if (!decideCutoff(nb.protocols[0], prop).applies) continue
+          const t0 = performance.now()
+          for (const n of [3, 4]) compare(nb.protocols[0], prop, n, `seed ${seed} ${protocol.name} ${prop.name} (${prop.source}) N=${n}`, tally)
+          if (process.env.SYM_DEBUG) console.log(seed, protocol.name, prop.name, ((performance.now() - t0) / 1000).toFixed(2), JSON.stringify(tally))
+        }
+      }
+    }
+    console.log(`generated protocols: ${JSON.stringify(tally)}`)
+    expect(tally.compared).toBeGreaterThanOrEqual(40)
+    expect(tally.holds).toBeGreaterThan(5)
+    expect(tally.violated).toBeGreaterThan(5)
+    expect(tally.recomputed).toBeGreaterThan(0)
+  })
+})

@@ -5,6 +5,7 @@ import { inductionCases } from './induction'
 import { parseCases } from './parse'
 import { productCases } from './product'
 import { reductionCases } from './reduction'
+import { temporalReductionCases } from './symmetry-temporal'
 import { temporalCases } from './temporal'
 
 const json = process.argv.includes('--json')
@@ -16,6 +17,7 @@ const cases = exploreCases()
 const product = productCases(root)
 const temporal = temporalCases()
 const reduction = reductionCases()
+const temporalReduction = temporalReductionCases()
 const induction = await inductionCases(60)
 
 const transitionsPerSecond = (c: { transitions: number; seconds: number }) => c.transitions / c.seconds
@@ -28,6 +30,7 @@ const report = {
   product,
   temporal,
   reduction,
+  temporalReduction,
   induction,
 }
 
@@ -52,6 +55,10 @@ if (json) {
   console.log('Symmetry reduction against unreduced search (goal: speedup above 1)')
   for (const c of reduction) {
     console.log(`  ${c.name.padEnd(48)} N=${c.processes}  ${f(c.representatives).padStart(9)} representatives for ${f(c.orbitTotal)} of ${f(c.states)} states  ${c.reducedSeconds.toFixed(2)} s against ${c.unreducedSeconds.toFixed(2)} s = ${c.speedup.toFixed(2)}x`)
+  }
+  console.log('Temporal rows under symmetry reduction (annotated quotient) against unreduced (goal: speedup above 1)')
+  for (const c of temporalReduction) {
+    console.log(`  ${c.name.padEnd(48)} N=${c.processes} ${c.fixed} fixed  ${f(c.representatives).padStart(9)} representatives for ${f(c.orbitTotal)} of ${f(c.states)} states  ${f(c.productNodes)} vs ${f(c.unreducedProductNodes)} product nodes  holds=${c.holds}  ${c.reducedSeconds.toFixed(2)} s against ${c.unreducedSeconds.toFixed(2)} s = ${c.speedup.toFixed(2)}x`)
   }
   const pc = parse.cases[0]
   console.log('Parse and check')

@@ -283,17 +283,17 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
     const fixed = [...new Set([...a, ...literalProcesses(terms)])]
     const rt = reducedTemporal(inst, fixed, terms.map((t) => compileTerm(inst, t, a)), fromModel(prop.formula, (t) => terms.indexOf(t)),
       { limit, shouldStop: opts.shouldStop, onProgress: progress, recomputeEdges: opts.recomputeEdges })
-    if (rt.kind !== 'fallback') {
+    if (rt.kind === 'incomplete' || rt.kind === 'decided' && rt.holds) {
       Object.assign(row, { method: 'exploration', search: 'ltl', assignment: named(prop, a), reducedStates: rt.representatives, transitions: rt.transitions })
       if (rt.kind === 'incomplete') {
         row.note = rt.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`within K states\``
         return row
       }
-      if (rt.holds) {
-        Object.assign(row, { verdict: 'holds', complete: true, states: rt.states, productStates: rt.productNodes })
-        row.note = `checked with symmetry reduction over the processes the property does not name (the annotated quotient, fairness tracked through the permutations): ${rt.representatives} representatives stand for ${rt.states} states; transitions are counted between representatives`
-        return row
-      }
+      Object.assign(row, { verdict: 'holds', complete: true, states: rt.states, productStates: rt.productNodes })
+      row.note = `checked with symmetry reduction over the processes the property does not name (the annotated quotient, fairness tracked through the permutations): ${rt.representatives} representatives stand for ${rt.states} states; transitions are counted between representatives`
+      return row
+    }
+    if (rt.kind === 'decided') {
       reducedViolated = true
       row.note = 'the symmetry-reduced search found a fair run that violates the property; the counterexample is from the search without reduction'
     } else row.note = `explored without symmetry reduction: ${rt.reason}`

@@ -21,6 +21,7 @@ import { symmetries } from '../../kernels/symmetry/group'
 import { reducedTemporal } from '../../kernels/symmetry/temporal'
 import { generateNotebook, generateProperties } from '../reference/generate'
 import { generateInClass } from './inclass'
+import { holdsOn } from '../logic/lasso'
 
 describe('the quotient fair-cycle test on a hand-made system', () => {
   // Two processes, no channels considered (2 fairness sets: process 0 steps, process 1 steps).
@@ -184,5 +185,75 @@ describe('reduced temporal verdicts against unreduced search', () => {
     expect(tally.holds).toBeGreaterThan(5)
     expect(tally.violated).toBeGreaterThan(5)
     expect(tally.recomputed).toBeGreaterThan(0)
+  })
+})
+
+const BELLS = `\`\`\`protocol
+protocol bells {
+  timing synchronous(delay: 1, idle: 1)
+  faults crash
+  message ding
+  state rung: bool = false
+  state heard[peer]: 0..1 = 0
+  on ding from q { heard[q] := 1 }
+  step {
+    rung := one of {true, false}
+    if rung { broadcast ding }
+  }
+}
+\`\`\`
+
+\`\`\`property
+property kept = forall p, q: always (p.heard[q] = 1 implies always p.heard[q] = 1)
+property lively = forall p: correct(p) implies always eventually alive(p)
+property told = forall p, q: correct(p) and correct(q) implies eventually p.heard[q] = 1
+\`\`\`
+
+\`\`\`check
+check bells: kept, lively, told at N = 4
+\`\`\`
+`
+
+describe('the runner on temporal rows two or more above the cutoff size', () => {
+  const nb = analyzeNotebook(BELLS)
+  const rows = planRows(nb).map((plan) => runRow(nb, plan))
+  const inst = compileInstance(nb.protocols[0], 4, [])
+  const full = explore(inst)
+
+  it('decides holding rows on the quotient, with the unreduced verdict and state count', () => {
+    for (const name of ['kept', 'lively']) {
+      const row = rows.find((r) => r.property === name)!
+      const prop = nb.checks[0].properties.find((p) => p.name === name)!
+      const terms = atomsOf(prop.formula)
+      const a = prop.vars.map((_, i) => i)
+      const want = unreduced(inst, terms.map((t) => compileTerm(inst, t, a)), fromModel(prop.formula, (t) => terms.indexOf(t)), Infinity, Infinity)
+      expect(want).toBe(true)
+      expect(row.verdict).toBe('holds')
+      expect(row.search).toBe('ltl')
+      expect(row.states).toBe(full.states)
+      expect(row.reducedStates).toBeLessThan(full.states)
+      expect(row.note).toMatch(/annotated quotient/)
+    }
+  })
+
+  it('explores a violation again without reduction: the lasso shown is a real fair run that breaks the property', () => {
+    const row = rows.find((r) => r.property === 'told')!
+    const prop = nb.checks[0].properties.find((p) => p.name === 'told')!
+    expect(row.verdict).toBe('violated')
+    expect(row.note).toMatch(/symmetry-reduced search found a fair run/)
+    expect(row.reducedStates).toBeUndefined()
+    expect(row.states).toBe(full.states)
+    const cx = row.counterexample!
+    expect(cx.kind).toBe('lasso')
+    // Oracle: the direct LTL evaluator (tests/logic/lasso.ts) on the atoms the row reports.
+    const terms = atomsOf(prop.formula)
+    const ltl = fromModel(prop.formula, (t) => terms.indexOf(t))
+    const masks = cx.ticks.map((_, i) => cx.atoms!.reduce((m, band, k) => m | (band.values[i] ? 1 << k : 0), 0))
+    expect(cx.atoms!.map((b) => b.values.length)).toEqual(terms.map(() => cx.ticks.length + 1))
+    expect(holdsOn(ltl, { prefix: masks.slice(0, cx.loopStart), loop: masks.slice(cx.loopStart) })).toBe(false)
+    // The loop is fair to processes: every process alive through it steps in it.
+    const loop = cx.ticks.slice(cx.loopStart!)
+    const crashed = new Set(cx.ticks.flatMap((t) => t.crashed))
+    for (let p = 1; p <= 4; p++) if (!crashed.has(p)) expect(loop.some((t) => t.stepped.includes(p)), `process ${p} steps in the loop`).toBe(true)
   })
 })

@@ -123,6 +123,11 @@ export function checkLtlQuotient(sys: QuotientSystem, formula: Ltl, opts: Emptin
   const edgeTo = new Int32Buffer(), edgePerm = new Int32Buffer(), edgeMark = new Int32Buffer()
   const members = new Int32Buffer()
   const qTo = new Int32Buffer(), qPerm = new Int32Buffer(), qMark = new Int32Buffer()
+  // Scratch of the component test, reused: the BFS queue, generators seen (stamped), union-find.
+  const queue = new Int32Buffer()
+  const gens = new Int32Array(group.size)
+  const parent = new Int32Array(Math.max(1, f))
+  const classMarks = new Int32Array(Math.max(1, f))
   let counter = 0, nodes = 0, edges = 0, maxId = -1, comps = 0, components = 0
   let lastReport = Date.now()
   const ensure = (v: number) => {
@@ -153,10 +158,10 @@ export function checkLtlQuotient(sys: QuotientSystem, formula: Ltl, opts: Emptin
     for (let k = 0; k < members.length; k++) tree.data[members.data[k]] = -1
     const b = members.data[0]
     tree.data[b] = 0
-    const queue = new Int32Buffer(members.length)
+    queue.length = 0
     queue.push(b)
     let N = 0
-    const gens = new Uint8Array(group.size)
+    let anyGen = false
     for (let h = 0; h < queue.length; h++) {
       const u = queue.data[h]
       const gu = tree.data[u]
@@ -172,23 +177,25 @@ export function checkLtlQuotient(sys: QuotientSystem, formula: Ltl, opts: Emptin
           tree.data[w] = x
           queue.push(w)
         } else {
-          gens[group.compose(x, group.inverse(tree.data[w]))] = 1
+          const h = group.compose(x, group.inverse(tree.data[w]))
+          if (h !== 0 && gens[h] !== c) { gens[h] = c; anyGen = true }
         }
       }
     }
     if ((N & acceptAll) !== acceptAll) return false
     if ((N & fairAll) === fairAll) return true
+    if (!anyGen) return false
     // The orbits of H on the fairness sets: union-find over the generators' moves.
-    const parent = Array.from({ length: f }, (_, i) => i)
+    for (let bit = 0; bit < f; bit++) parent[bit] = bit
     const find = (x: number): number => { while (parent[x] !== x) x = parent[x] = parent[parent[x]]; return x }
     for (let h = 1; h < group.size; h++) {
-      if (!gens[h]) continue
+      if (gens[h] !== c) continue
       for (let bit = 0; bit < f; bit++) {
         const a = find(bit), z = find(group.mapBit(h, bit))
         if (a !== z) parent[a] = z
       }
     }
-    const classMarks = new Array<number>(f).fill(0)
+    classMarks.fill(0)
     for (let bit = 0; bit < f; bit++) if ((N >> bit) & 1) classMarks[find(bit)] = 1
     for (let bit = 0; bit < f; bit++) if (!classMarks[find(bit)]) return false
     return true

@@ -9,7 +9,7 @@ import { FairGraphRecorder, systemOf } from '../../kernels/explore/fairgraph'
 import { explore } from '../../kernels/explore/reach'
 import { analyzeNotebook } from '../../kernels/language/analyze'
 import type { Formula, ProtocolModel, PropertyModel, Term } from '../../kernels/language/model'
-import { FALSE, fromModel, type Ltl } from '../../kernels/logic/ltl'
+import { FALSE, fromModel, type Ltl, show } from '../../kernels/logic/ltl'
 import { checkLtl, type System } from '../../kernels/logic/product'
 import { checkLtlQuotient, type QuotientSystem } from '../../kernels/logic/quotient'
 import { ModelSetupError, PropertyFault } from '../../kernels/model/errors'
@@ -21,7 +21,7 @@ import { symmetries } from '../../kernels/symmetry/group'
 import { reducedTemporal } from '../../kernels/symmetry/temporal'
 import { generateNotebook, generateProperties } from '../reference/generate'
 import { generateInClass } from './inclass'
-import { holdsOn } from '../logic/lasso'
+import { holdsOn, Random, randomLtl } from '../logic/lasso'
 
 describe('the quotient fair-cycle test on a hand-made system', () => {
   // Two processes, no channels considered (2 fairness sets: process 0 steps, process 1 steps).
@@ -50,6 +50,137 @@ describe('the quotient fair-cycle test on a hand-made system', () => {
     const stuck: System = { ...full, successors(s, to, fair) { to.push(s); fair.push(s === 0 ? 1 : 2) } }
     expect(checkLtl(stuck, FALSE).holds).toBe(true)
     expect(checkLtlQuotient(quotient(0), FALSE).holds).toBe(true)
+  })
+})
+
+/**
+ * A random symmetric system: n processes, each with a local state in 0..L-1 moved by one relation;
+ * in each tick one process steps, or (when allowed) two in local state 0 step together, or nobody
+ * does. Marks: bit i when process i steps, or always while it is in the `parked` local state (as a
+ * crashed process is always marked). Initial states: every process in an allowed initial local
+ * state. Atoms read the local state of process 0 when it is fixed, otherwise counts only, so they
+ * are symmetric. Its full graph and its annotated quotient (brute-force canonical forms, the least
+ * code over the group, and the permutation that gives it) are built here from the definition.
+ */
+function symmetricSystem(r: Random, n: number, fixed: number[]) {
+  // Teams variant: local states 0/1 (team A with/without its token) and 2/3 (team B); each token
+  // passes only within its team (or, when `keep`, may stay), so a component's group keeps the
+  // teams apart and has more than one orbit on the free processes.
+  const teams = r.next() < 0.35, keep = r.next() < 0.5
+  const L = teams ? 4 : 2 + r.int(2)
+  const moves = Array.from({ length: L }, () => [...new Set([r.int(L), ...(r.next() < 0.5 ? [r.int(L)] : [])])])
+  const pairs = r.next() < 0.5, idle = r.next() < 0.5
+  const parked = r.next() < 0.4 ? L - 1 : -1
+  // Token variant: local state 0 holds the token; only its holder steps (others too when `others`),
+  // and it hands the token to any other process. A fair cycle then needs the token to visit every
+  // process, which the quotient sees only through the permutations: in a representative's names
+  // the same position may hold the token every time.
+  const token = r.next() < 0.5, others = r.next() < 0.3
+  const inits = [...new Set([0, ...(r.next() < 0.4 ? [1] : [])])]
+  const size = L ** n
+  const decode = (c: number) => Array.from({ length: n }, (_, i) => Math.floor(c / L ** i) % L)
+  const encode = (xs: number[]) => xs.reduce((c, x, i) => c + x * L ** i, 0)
+  const group = symmetries(n, fixed, n)
+  // Any choice of one member per orbit makes a quotient; a scrambled one (least hash, not least
+  // code) gives representatives whose layouts differ, so that marks must be read through the
+  // accumulated permutation rather than in each representative's own names.
+  const salt = r.int(1 << 30), scrambled = r.next() < 0.5
+  const rank = (code: number) => (scrambled ? Math.imul(code ^ salt, 0x9e3779b1) >>> 0 : code)
+  const canon = (c: number): { rep: number; perm: number } => {
+    const xs = decode(c)
+    let best = { rep: -1, perm: 0, rank: Infinity }
+    for (let g = 0; g < group.size; g++) {
+      const img = new Array<number>(n)
+      group.perm(g).forEach((to, i) => { img[to] = xs[i] })
+      const code = encode(img)
+      if (rank(code) < best.rank) best = { rep: code, perm: g, rank: rank(code) }
+    }
+    return best
+  }
+  const edges = (c: number): { to: number; fair: number }[] => {
+    const xs = decode(c)
+    const base = xs.reduce((m, x, i) => (x === parked ? m | (1 << i) : m), 0)
+    const out: { to: number; fair: number }[] = []
+    if (idle) out.push({ to: c, fair: base })
+    if (teams) {
+      for (let i = 0; i < n; i++) {
+        if (xs[i] !== 0 && xs[i] !== 2) continue
+        if (keep) out.push({ to: c, fair: base | (1 << i) })
+        for (let j = 0; j < n; j++) {
+          if (xs[j] !== xs[i] + 1) continue
+          const ys = [...xs]; ys[j] = xs[i]; ys[i] = xs[i] + 1
+          out.push({ to: encode(ys), fair: base | (1 << i) })
+        }
+      }
+      return out
+    }
+    if (token) {
+      for (let i = 0; i < n; i++) {
+        if (xs[i] === 0) {
+          for (let j = 0; j < n; j++) {
+            if (j === i) continue
+            const ys = [...xs]; ys[j] = 0; ys[i] = 1 + (moves[xs[j]][0] % (L - 1))
+            out.push({ to: encode(ys), fair: base | (1 << i) })
+          }
+        } else if (others) {
+          for (const b of moves[xs[i]]) if (b !== 0) { const ys = [...xs]; ys[i] = b; out.push({ to: encode(ys), fair: base | (1 << i) }) }
+        }
+      }
+      return out
+    }
+    for (let i = 0; i < n; i++) for (const b of moves[xs[i]]) { const ys = [...xs]; ys[i] = b; out.push({ to: encode(ys), fair: base | (1 << i) }) }
+    if (pairs) {
+      for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) {
+        if (xs[i] !== 0 || xs[j] !== 0) continue
+        const ys = [...xs]; ys[i] = moves[0][0]; ys[j] = moves[0][0]
+        out.push({ to: encode(ys), fair: base | (1 << i) | (1 << j) })
+      }
+    }
+    return out
+  }
+  const count = (xs: number[], v: number) => xs.filter((x) => x === v).length
+  const atoms = (c: number) => {
+    const xs = decode(c)
+    const a0 = fixed.includes(0) ? xs[0] === 1 : count(xs, 1) >= 2
+    const a1 = count(xs, 0) >= 1
+    const a2 = fixed.includes(0) ? xs[0] === 0 && count(xs, 0) === 1 : count(xs, L - 1) === n
+    return (a0 ? 1 : 0) | (a1 ? 2 : 0) | (a2 ? 4 : 0)
+  }
+  const initial: number[] = []
+  for (let c = 0; c < size; c++) {
+    const xs = decode(c)
+    if (teams ? count(xs, 0) === 1 && count(xs, 2) === 1 : token ? count(xs, 0) === 1 && xs.every((x) => x <= 1) : xs.every((x) => inits.includes(x))) initial.push(c)
+  }
+  const full: System = {
+    initial: () => initial, atoms, fairnessSets: n, states: size,
+    successors(c, to, fair) { for (const e of edges(c)) { to.push(e.to); fair.push(e.fair) } },
+  }
+  const quotient: QuotientSystem = {
+    initial: () => [...new Set(initial.map((c) => canon(c).rep))], atoms, fairnessSets: n, states: size, group,
+    successors(c, to, perm, fair) {
+      for (const e of edges(c)) { const k = canon(e.to); to.push(k.rep); perm.push(k.perm); fair.push(e.fair) }
+    },
+  }
+  return { full, quotient }
+}
+
+describe('the quotient fair-cycle test on random symmetric systems', () => {
+  it('agrees with the full product on random formulas (and on whether any fair run exists)', () => {
+    const r = new Random(20261202)
+    let holds = 0, violated = 0
+    for (let k = 0; k < 400; k++) {
+      const n = 3 + r.int(2)
+      const fixed = r.next() < 0.5 ? [0] : []
+      const { full, quotient } = symmetricSystem(r, n, fixed)
+      for (const f of [FALSE, randomLtl(r, 3, 3), randomLtl(r, 3, 3)]) {
+        const want = checkLtl(full, f).holds
+        expect(`system ${k} formula ${show(f)}: ${checkLtlQuotient(quotient, f).holds}`).toBe(`system ${k} formula ${show(f)}: ${want}`)
+        if (want) holds++
+        else violated++
+      }
+    }
+    expect(holds).toBeGreaterThan(100)
+    expect(violated).toBeGreaterThan(100)
   })
 })
 

@@ -16,6 +16,7 @@ import { ModelSetupError, PropertyFault } from '../../kernels/model/errors'
 import { compileInstance, type Instance } from '../../kernels/model/instance'
 import { compileTerm } from '../../kernels/model/observe'
 import { planRows, runRow } from '../../kernels/run'
+import { canonicalizer, freePermutations, permuteState } from '../../kernels/symmetry/canon'
 import { decideCutoff } from '../../kernels/symmetry/cutoff'
 import { symmetries } from '../../kernels/symmetry/group'
 import { reducedTemporal } from '../../kernels/symmetry/temporal'
@@ -386,5 +387,26 @@ describe('the runner on temporal rows two or more above the cutoff size', () => 
     const loop = cx.ticks.slice(cx.loopStart!)
     const crashed = new Set(cx.ticks.flatMap((t) => t.crashed))
     for (let p = 1; p <= 4; p++) if (!crashed.has(p)) expect(loop.some((t) => t.stepped.includes(p)), `process ${p} steps in the loop`).toBe(true)
+  })
+})
+
+describe('canonicalizer', () => {
+  it('returns the index of the permutation that maps each state to its representative', () => {
+    const nb = analyzeNotebook(BELLS)
+    const inst = compileInstance(nb.protocols[0], 4, [])
+    const r = explore(inst, { limit: 3000 })
+    for (const fixed of [[], [0], [0, 1]]) {
+      const canon = canonicalizer(inst, fixed)
+      const perms = freePermutations(4, fixed)
+      const rep = new Uint32Array(inst.words), img = new Uint32Array(inst.words)
+      let moved = 0
+      for (let s = 0; s < r.states; s++) {
+        const k = canon(r.store.data, s * inst.words, rep)
+        permuteState(inst, r.store.data, s * inst.words, perms[k], img)
+        expect([...img]).toEqual([...rep])
+        if (k !== 0) moved++
+      }
+      if (fixed.length < 2) expect(moved).toBeGreaterThan(0)
+    }
   })
 })

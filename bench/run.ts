@@ -6,6 +6,7 @@ import { inductionCases } from './induction'
 import { parseCases } from './parse'
 import { productCases } from './product'
 import { reductionCases } from './reduction'
+import { temporalReductionCases } from './symmetry-temporal'
 import { temporalCases } from './temporal'
 import { translationCases } from './translation'
 
@@ -20,6 +21,7 @@ const product = productCases(root)
 const temporal = temporalCases()
 const translation = translationCases()
 const reduction = reductionCases()
+const temporalReduction = temporalReductionCases()
 const induction = await inductionCases(quick ? 10 : 60)
 
 const transitionsPerSecond = (c: { transitions: number; seconds: number }) => c.transitions / c.seconds
@@ -33,6 +35,7 @@ const report = {
   temporal,
   translation,
   reduction,
+  temporalReduction,
   induction,
 }
 
@@ -62,6 +65,10 @@ if (json) {
   console.log('Symmetry reduction against unreduced search (goal: speedup above 1)')
   for (const c of reduction) {
     console.log(`  ${c.name.padEnd(48)} N=${c.processes}  ${f(c.representatives).padStart(9)} representatives for ${f(c.orbitTotal)} of ${f(c.states)} states  ${c.reducedSeconds.toFixed(2)} s against ${c.unreducedSeconds.toFixed(2)} s = ${c.speedup.toFixed(2)}x`)
+  }
+  console.log('Temporal rows under symmetry reduction (annotated quotient) against unreduced (goal: speedup above 1)')
+  for (const c of temporalReduction) {
+    console.log(`  ${c.name.padEnd(48)} N=${c.processes} ${c.fixed} fixed  ${f(c.representatives).padStart(9)} representatives for ${f(c.orbitTotal)} of ${f(c.states)} states  ${f(c.productNodes)} vs ${f(c.unreducedProductNodes)} product nodes  holds=${c.holds}  ${c.reducedSeconds.toFixed(2)} s against ${c.unreducedSeconds.toFixed(2)} s = ${c.speedup.toFixed(2)}x`)
   }
   console.log('Parse and check')
   for (const pc of parse.cases) console.log(`  ${pc.name}: ${pc.lines} lines in ${pc.seconds.toFixed(3)} s = ${f(pc.linesPerSecond)} lines/s (${pc.diagnostics} diagnostics)`)

@@ -7,19 +7,21 @@ import { planOf, type RowPlan, type RunOptions } from './plan'
 export { planRows } from './plan'
 import { analyzeNotebook } from './language/analyze'
 import { instantiatedText } from './language/instantiate'
-import type { CheckModel, Formula, NotebookModel, PropertyModel, ProtocolModel, Term } from './language/model'
+import type { CheckModel, Formula, NotebookModel, ProcRef, PropertyModel, ProtocolModel, Term } from './language/model'
 import { FairGraphRecorder, lassoTicks, systemOf } from './explore/fairgraph'
 import { explore, type ExploreResult } from './explore/reach'
 import { isOutOfMemory } from './explore/stateset'
 import { modelErrorCounterexample, traceCounterexample } from './explore/trace'
 import { fromModel } from './logic/ltl'
 import { checkLtl, negationAutomaton, type System } from './logic/product'
+import type { Automaton } from './logic/automaton'
 import { MAX_TEMPORAL_PROCESSES } from './language/limits'
 import { ModelSetupError, PropertyFault } from './model/errors'
 import { compileInstance, type Instance } from './model/instance'
 import { compileTerm, type StateTerm } from './model/observe'
 import { canonicalizer, orbitTotal } from './symmetry/canon'
 import { decideCutoff } from './symmetry/cutoff'
+import { reducedTemporal } from './symmetry/temporal'
 import { RULE_NAMES } from './symmetry/rules'
 import { sha256Hex } from './record/hash'
 import { byInduction, runInductionRow, type ProofCache } from './induction/row'
@@ -264,8 +266,8 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   } : undefined
   // Cross-checks above the cutoff size use symmetry reduction for invariants: the processes the
   // property names stay fixed and the others are interchangeable (the class check granted it, and
-  // a protocol cannot tell processes apart). Temporal properties are checked unreduced, because
-  // the fairness sets name processes and a quotient would mix them.
+  // a protocol cannot tell processes apart). Temporal properties take the annotated quotient below,
+  // because the fairness sets name processes and a plain quotient would mix them.
   // Permutations are enumerated per state, so only up to 5 free processes (120 permutations).
   const reduce = inv !== null && cutoff.applies && cutoff.processes !== null && n - cutoff.processes >= 2 && n - chosen[0].length <= 5
   if (reduce) {
@@ -288,6 +290,34 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
       return row
     }
     // A violation or a model error: explore again without reduction for a real, shortest trace.
+  }
+  // Temporal cross-checks above the cutoff size: the annotated quotient (symmetry/temporal.ts),
+  // exact under our fairness; it decides the verdict, and a violation is searched again unreduced
+  // for a real lasso, as above.
+  let reducedViolated = false
+  // One translation of the negated property for every search of this row (reduced and not).
+  const ltl = fromModel(prop.formula, (t) => terms.indexOf(t))
+  let negated: ReturnType<typeof negationAutomaton> | undefined
+  const translate = () => negated ??= negationAutomaton(ltl, { shouldStop: opts.shouldStop, translation: { onProgress: () => progress?.({ states: 0, transitions: 0, statesPerSecond: 0, seconds: (performance.now() - t0) / 1000 }), budget: opts.translationBudget } })
+  if (!inv && cutoff.applies && cutoff.processes !== null && n - cutoff.processes >= 2 && 'states' in translate()) {
+    const a = chosen[0]
+    const fixed = [...new Set([...a, ...literalProcesses(terms)])]
+    const rt = reducedTemporal(inst, fixed, terms.map((t) => compileTerm(inst, t, a)), ltl,
+      { limit, shouldStop: opts.shouldStop, onProgress: progress, recomputeEdges: opts.recomputeEdges, automaton: translate() as Automaton })
+    if (rt.kind === 'incomplete' || rt.kind === 'decided' && rt.holds) {
+      Object.assign(row, { method: 'exploration', search: 'ltl', assignment: named(prop, a), reducedStates: rt.representatives, transitions: rt.transitions })
+      if (rt.kind === 'incomplete') {
+        row.note = rt.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`within K states\``
+        return row
+      }
+      Object.assign(row, { verdict: 'holds', complete: true, states: rt.states, productStates: rt.productNodes })
+      row.note = `checked with symmetry reduction over the processes the property does not name (the annotated quotient, fairness tracked through the permutations): ${rt.representatives} representatives stand for ${rt.states} states; transitions are counted between representatives`
+      return row
+    }
+    if (rt.kind === 'decided') {
+      reducedViolated = true
+      row.note = 'the symmetry-reduced search found a fair run that violates the property; the counterexample is from the search without reduction'
+    } else row.note = `explored without symmetry reduction: ${rt.reason}`
   }
   // The temporal route records the fair graph in the same pass (unless told to save memory).
   const recorder = inv ? undefined : new FairGraphRecorder(inst, opts.recomputeEdges ? 0 : undefined)
@@ -330,8 +360,6 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   // Temporal property: the product with the automaton of the negation, per assignment.
   let productNodes = 0
   const graph = recorder!.graph(r.states)
-  const ltl = fromModel(prop.formula, (t) => terms.indexOf(t))
-  let negated: ReturnType<typeof negationAutomaton> | undefined
   for (const a of chosen) {
     const compiled = terms.map((t) => compileTerm(inst, t, a))
     let sys: System
@@ -399,7 +427,26 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   row.verdict = 'holds'
   row.complete = true
   ;(row as CheckRow & { productStates?: number }).productStates = productNodes
+  if (reducedViolated) row.note = 'the symmetry-reduced search found a fair violating run that the search without reduction does not; the unreduced verdict stands; please report this notebook'
   return row
+}
+
+/** The 0-based processes a property names by number (`#n`): reduction keeps them fixed too. */
+function literalProcesses(terms: Term[]): number[] {
+  const out: number[] = []
+  const ref = (r: ProcRef | null) => { if (r && r.k === 'fixed') out.push(r.n - 1) }
+  const walk = (t: Term): void => {
+    switch (t.k) {
+      case 'member': ref(t.proc); ref(t.peer); break
+      case 'alive': case 'crashed': ref(t.proc); break
+      case 'pending': ref(t.from); ref(t.to); break
+      case 'neg': walk(t.arg); break
+      case 'bin': case 'min': case 'max': walk(t.left); walk(t.right); break
+      default: break
+    }
+  }
+  terms.forEach(walk)
+  return out
 }
 
 /** Runs every planned row of a notebook: the `--json` document of records.md. */

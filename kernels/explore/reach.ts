@@ -21,15 +21,21 @@ export interface ExploreProgress {
 
 /**
  * Sees every edge of the exploration, source by source in index order (breadth-first numbering),
- * so a graph can be recorded in the same pass. Not for reduced explorations.
+ * so a graph can be recorded in the same pass. Under symmetry reduction only a recorder marked
+ * `reduced` is accepted: it then sees every edge out of each representative to a raw successor
+ * (`dst`, in the source's process names, so marks read there are the source's), with `target` the
+ * store index of that successor's representative and `perm` the index of the permutation that the
+ * canonicalizer applied to reach it.
  */
 export interface EdgeRecorder {
   /** Bytes held by what is recorded so far (counted against `memoryBudget`). */
   readonly bytes?: number
+  /** True for a recorder of the quotient graph (see above); only such a one works with `canonicalize`. */
+  readonly reduced?: boolean
   /** Source `index` (held in src[0..words)) is about to be expanded. */
   beginSource(index: number, src: Uint32Array): void
   /** One successor of the current source: its store index and what `successors` reported. */
-  edge(target: number, dst: Uint32Array, stepped: number, receivedFrom: number): void
+  edge(target: number, dst: Uint32Array, stepped: number, receivedFrom: number, perm: number): void
 }
 
 export interface ExploreOptions {
@@ -47,15 +53,16 @@ export interface ExploreOptions {
    * Symmetry reduction: maps every state (initial ones and successors) to the representative of
    * its orbit before it is stored, so the store holds one state per orbit. The invariant must be
    * invariant under the same permutations. Traces through representatives are not runs: a caller
-   * that needs a counterexample explores again without reduction.
+   * that needs a counterexample explores again without reduction. It may return the index of the
+   * permutation it applied (`canon.ts` `canonicalizer` does), which a `reduced` recorder receives.
    */
-  canonicalize?: (src: Uint32Array, off: number, dst: Uint32Array) => void
+  canonicalize?: (src: Uint32Array, off: number, dst: Uint32Array) => number | void
   /**
    * Skip erroring branches and go on (for differential counts); the first error is still reported
    * (outcome 'model-error', with its trace). Default: stop at the first error.
    */
   continueOnError?: boolean
-  /** Records every edge during the search (see `EdgeRecorder`); incompatible with `canonicalize`. */
+  /** Records every edge during the search (see `EdgeRecorder`); with `canonicalize`, only a `reduced` one. */
   edges?: EdgeRecorder
   /**
    * Bytes the state store (arena and hash table) and the recorded edges may take. Past it, or
@@ -152,7 +159,7 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
 
   const canon = opts.canonicalize
   const rec = opts.edges
-  if (rec && canon) throw new Error('internal error: edges are recorded between real states, not representatives')
+  if (rec && canon && !rec.reduced) throw new Error('internal error: edges are recorded between real states, not representatives')
   const rep = new Uint32Array(W)
   let init = inst.initialStates()
   if (canon) {
@@ -197,14 +204,30 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
   // Under reduction, the raw successors of the current source: many successor combinations (crash
   // subsets, choices) give the same state, and a repeat maps to the same representative, so it
   // skips the canonical form (the costly part: one image per permutation) and changes nothing.
+  // A reduced recorder still sees a repeat (other processes stepping give other marks), with the
+  // representative and permutation remembered from its first occurrence.
   const raw = canon ? new StateStore(W, 64) : null
+  let rawRep = new Int32Array(rec ? 64 : 0), rawPerm = new Int32Array(rec ? 64 : 0)
+  let perm = 0
   const emit = (succ: Uint32Array, stepped: number, receivedFrom: number): boolean => {
     let dst = succ
     if (canon) {
       const before = raw!.size
-      if (raw!.insert(succ, 0) < before) return false
-      canon(succ, 0, rep)
+      const k = raw!.insert(succ, 0)
+      if (k < before) {
+        if (rec) rec.edge(rawRep[k], succ, stepped, receivedFrom, rawPerm[k])
+        return false
+      }
+      perm = canon(succ, 0, rep) ?? 0
       dst = rep
+      if (rec) {
+        if (k >= rawRep.length) {
+          const a = new Int32Array(rawRep.length * 2); a.set(rawRep); rawRep = a
+          const b = new Int32Array(rawPerm.length * 2); b.set(rawPerm); rawPerm = b
+        }
+        rawPerm[k] = perm
+        rawRep[k] = -1
+      }
     }
     let idx = store.lookup(dst, 0)
     if (idx < 0) {
@@ -214,13 +237,19 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
       }
       idx = store.insert(dst, 0)
       if (seen.add(idx)) transitions++
-      if (rec) rec.edge(idx, dst, stepped, receivedFrom)
+      if (rec) record(idx, succ, stepped, receivedFrom)
       if (invariant && !check(dst, 0, idx)) return true
       return false
     }
     if (seen.add(idx)) transitions++
-    if (rec) rec.edge(idx, dst, stepped, receivedFrom)
+    if (rec) record(idx, succ, stepped, receivedFrom)
     return false
+  }
+
+  // Unreduced, `succ` is the state stored; reduced, the raw successor (the recorder's `dst`).
+  const record = (idx: number, succ: Uint32Array, stepped: number, receivedFrom: number) => {
+    if (canon) rawRep[raw!.size - 1] = idx
+    rec!.edge(idx, succ, stepped, receivedFrom, perm)
   }
 
   // One bound object for the whole search (no allocation per state); see expansion.ts.

@@ -62,7 +62,7 @@ class Letters {
   private used = 0
   private readonly dense: Int32Array | null
   private readonly hashed: Map<number, number> | null
-  constructor(private readonly sys: System, private readonly aut: Automaton) {
+  constructor(private readonly sys: AtomSource, private readonly aut: Automaton) {
     const W = aut.labelWords
     this.rows = new Uint32Array(W * 64)
     this.dense = sys.states !== undefined ? new Int32Array(sys.states).fill(-1) : null
@@ -86,15 +86,51 @@ class Letters {
   }
 }
 
+/** What a label test reads of a system: its atoms, word by word, and how many states it has. */
+export type AtomSource = Pick<System, 'atoms' | 'atomWords' | 'states'>
+
+/**
+ * Whether automaton state r's label holds in system state t (`holds(r, t)`), for every product
+ * over `sys` (the plain one here and the quotient's): `direct` when one word of atoms is read as
+ * the letter itself (the common case, which callers may inline); otherwise each state's letter
+ * row is computed once from its atoms (letters may be predicates over atoms, `abstractStates`).
+ */
+export function labelTest(sys: AtomSource, aut: Automaton): { direct: boolean; holds: (r: number, t: number) => boolean } {
+  const atomWords = Math.ceil(aut.atoms / 32)
+  if (atomWords > (sys.atomWords ?? 1)) {
+    throw new Error(`the formula reads ${aut.atoms} atoms but the system answers only ${32 * (sys.atomWords ?? 1)}`)
+  }
+  const { mustTrue, mustFalse } = aut
+  const W = aut.labelWords
+  const direct = !aut.predicates && W === 1
+  if (direct) {
+    return {
+      direct,
+      holds: (r, t) => {
+        const a = sys.atoms(t, 0)
+        return ((a & mustTrue[r]) ^ mustTrue[r]) === 0 && (a & mustFalse[r]) === 0
+      },
+    }
+  }
+  const letters = new Letters(sys, aut)
+  return {
+    direct,
+    holds: (r, t) => {
+      const o = letters.at(t), rows = letters.rows
+      for (let w = 0; w < W; w++) {
+        const a = rows[o + w], mt = mustTrue[r * W + w]
+        if ((((a & mt) ^ mt) | (a & mustFalse[r * W + w])) !== 0) return false
+      }
+      return true
+    },
+  }
+}
+
 /** The product of `sys` with `aut`; see the file comment for the label and mark conventions. */
 export function productGraph(sys: System, aut: Automaton): ProductGraph {
   const f = sys.fairnessSets
   if (f + aut.acceptanceSets > 31) {
     throw new Error(`${f} fairness sets and ${aut.acceptanceSets} acceptance sets exceed the 31 marks the product supports`)
-  }
-  const atomWords = Math.ceil(aut.atoms / 32)
-  if (atomWords > (sys.atomWords ?? 1)) {
-    throw new Error(`the formula reads ${aut.atoms} atoms but the system answers only ${32 * (sys.atomWords ?? 1)}`)
   }
   const Q = aut.states
   const dense = sys.states !== undefined && sys.states * Q <= DENSE_NODES
@@ -102,22 +138,7 @@ export function productGraph(sys: System, aut: Automaton): ProductGraph {
   const id = pairs ? (s: number, q: number) => pairs.id(s, q) : (s: number, q: number) => s * Q + q
   const { succStart, succ, accept, mustTrue, mustFalse } = aut
   const to = new Int32Buffer(), fair = new Int32Buffer()
-  const W = aut.labelWords
-  // One word of atoms read directly (the common case); otherwise each state's row, computed once.
-  const direct = !aut.predicates && W === 1
-  const letters = direct ? null : new Letters(sys, aut)
-  const holds = (r: number, t: number): boolean => {
-    if (direct) {
-      const a = sys.atoms(t, 0)
-      return ((a & mustTrue[r]) ^ mustTrue[r]) === 0 && (a & mustFalse[r]) === 0
-    }
-    const o = letters!.at(t), rows = letters!.rows
-    for (let w = 0; w < W; w++) {
-      const a = rows[o + w], mt = mustTrue[r * W + w]
-      if ((((a & mt) ^ mt) | (a & mustFalse[r * W + w])) !== 0) return false
-    }
-    return true
-  }
+  const { direct, holds } = labelTest(sys, aut)
   const allMarks = ((f === 0 ? 0 : 2 ** f - 1) | (allAcceptance(aut) << f)) | 0
   return {
     allMarks,

@@ -119,8 +119,10 @@ export function freePermutations(n: number, fixed: readonly number[]): number[][
  * The returned function writes to dst[0..words) the lexicographically least image of the state at
  * src[off..]; two states get the same image iff one is a renaming of the other by such a permutation.
  * `dst` must not overlap the source state. Not re-entrant (it owns a scratch state).
+ * It returns which permutation gave the image: its index in `freePermutations(n, fixed)` (0, the
+ * identity, when the state is its own representative); the temporal route records it on edges.
  */
-export function canonicalizer(inst: Instance, fixed: number[]): (src: Uint32Array, off: number, dst: Uint32Array) => void {
+export function canonicalizer(inst: Instance, fixed: number[]): (src: Uint32Array, off: number, dst: Uint32Array) => number {
   const n = inst.n
   for (const f of fixed) if (!Number.isInteger(f) || f < 0 || f >= n) throw new Error(`fixed process ${f} is not a process of G_${n} (0-based)`)
   const words = inst.words
@@ -130,6 +132,7 @@ export function canonicalizer(inst: Instance, fixed: number[]): (src: Uint32Arra
   const scratch = new Uint32Array(words)
   return (src, off, dst) => {
     for (let w = 0; w < words; w++) dst[w] = src[off + w]
+    let chosen = 0
     perm: for (let p = 0, row = 0; p < count; p++, row += words) {
       // Most significant bits first: give up on this image as soon as its top bits exceed the best.
       let less = false
@@ -146,8 +149,9 @@ export function canonicalizer(inst: Instance, fixed: number[]): (src: Uint32Arra
         }
         scratch[w] = v >>> 0
       }
-      if (less) for (let k = 0; k < words; k++) dst[k] = scratch[k]
+      if (less) { for (let k = 0; k < words; k++) dst[k] = scratch[k]; chosen = p + 1 }
     }
+    return chosen
   }
 }
 

@@ -7,9 +7,9 @@
 import type { System } from '../logic/product'
 import type { Instance } from '../model/instance'
 import { channelEmpty, isCrashed, isStable, type StateTerm } from '../model/observe'
-import { ChunkedInt32 } from './chunked'
+import { ChunkedInt32 } from '../base/chunked'
 import type { EdgeRecorder, ExploreResult } from './reach'
-import type { StateStore } from './stateset'
+import type { StateStore } from '../base/stateset'
 
 /**
  * Fairness sets (semantics.md) as transition marks: bit i, process i steps or is crashed; then one

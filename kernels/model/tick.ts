@@ -12,7 +12,7 @@
 // OR of the B images masked to the channels of receivers still alive, plus the images of crashed
 // processes. The OR is exact: fields of different processes are disjoint, and a sent copy (age 1)
 // merges with a remaining copy of age 1 exactly as a set of (value, age) pairs does.
-import { StateStore } from '../explore/stateset'
+import { StateStore } from '../base/stateset'
 import type { MessageEvent } from '../result'
 import type { ModelError } from './errors'
 import { ExecFault, type Program } from './exec'

@@ -60,7 +60,7 @@ export async function exportRecord(host: ExportHost): Promise<void> {
   if (host.checks().some((c) => !c.fresh)) { host.notice('Some checks did not finish, so no record was made.'); return }
   const r = await report(host, model)
   const { buildRecord } = await import('../../kernels/record/record')
-  const { canonicalJsonPretty } = await import('../../kernels/record/canonical')
+  const { canonicalJsonPretty } = await import('../../kernels/base/canonical')
   const record = await buildRecord(r, host.text(), model)
   download(fileName(shownTitle(host.text()), '.record.json'), 'application/json', canonicalJsonPretty(record) + '\n')
 }

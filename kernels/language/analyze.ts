@@ -1,5 +1,6 @@
 // The front end in one call: notebook text to a `NotebookModel` with every diagnostic. Never
 // throws, whatever the input: an internal failure becomes a diagnostic, not a stack trace.
+import { errorText } from '../base/error-text'
 import { BlockContext, children } from './context'
 import { CheckScope, resolveCheck } from './check'
 import type { BlockRef, CheckModel, Diagnostic, NotebookModel, PropertyDecl, ProtocolModel } from './model'
@@ -20,7 +21,7 @@ export function analyzeNotebook(text: string): NotebookModel {
       title: null, blocks: [], protocols: [], properties: [], checks: [],
       diagnostics: [{
         line: 1, column: 1, endLine: 1, endColumn: 1, from: 0, to: 0, severity: 'error',
-        message: `the notebook could not be read (${e instanceof Error ? e.message : String(e)}); please report this notebook to the twofold developers`,
+        message: `the notebook could not be read (${errorText(e)}); please report this notebook to the twofold developers`,
       }],
     }
   }

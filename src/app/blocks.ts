@@ -2,7 +2,7 @@
 // blocks (a CodeMirror editor, its diagnostics, typeset properties, and for checks the findings).
 // A view holds its segment (offsets into the notebook text) and reports edits to its host; it
 // never keeps a copy of the text that could drift from the notebook.
-import type { CheckRow, Progress } from '../../kernels/result'
+import type { CheckRow, Progress } from '../../kernels/api'
 import { button, el } from './dom'
 import { atomColour, counterexampleSvg, filledIn } from './diagram'
 import { BlockEditor, type NotebookDiagnostic } from './editor'

@@ -1,7 +1,7 @@
 // Placing the kernel's diagnostics: each goes to the formal block that holds it (underlined in its
 // editor and listed under it); the rest (prose, front matter) are listed above the notebook. Links
 // to a line (diagnostics, reasons, model errors) bring that line into view in its editor.
-import type { NotebookModel } from '../../kernels/language/model'
+import type { NotebookModel } from '../../kernels/api'
 import { FormalView, type BlockView } from './blocks'
 import { el } from './dom'
 import { lineStarts } from './segments'

@@ -3,7 +3,7 @@
 // run from the tick that sent to the tick that received; crashes are crossed out; columns beside
 // the lanes are shaded where the property's atoms hold; a lasso's repeating part is bracketed.
 // Pure: a Counterexample in, an SVG string out, every text escaped (see html.ts).
-import type { Counterexample, MessageEvent } from '../../kernels/result'
+import type { Counterexample, MessageEvent } from '../../kernels/api'
 import { html, raw, type Markup } from './html'
 
 /** One arrow of the diagram. `receiveTick` is null when the trace never shows the receipt. */

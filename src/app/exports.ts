@@ -1,8 +1,7 @@
 // What the workbench exports: the notebook as Markdown, the verification record as JSON, and the
 // self-contained HTML report. Each reads the page's state through `ExportHost` and raises no
 // notices of its own beyond what the export itself needs to say.
-import type { NotebookModel } from '../../kernels/language/model'
-import type { CheckRow, Report } from '../../kernels/result'
+import type { CheckRow, NotebookModel, Report } from '../../kernels/api'
 import { download, fileName } from './dom'
 import type { Kernel } from './kernel'
 import { renderProse } from './markdown'

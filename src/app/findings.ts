@@ -1,8 +1,7 @@
 // The findings of the open notebook: what each check line depends on and showed last, running
 // checks in the kernel (one at a time, stoppable), caching rows by the hash of their inputs, and
 // the notebook summary at the top. The page owns the text and the views; this owns the checks.
-import type { NotebookModel } from '../../kernels/language/model'
-import type { CheckRow } from '../../kernels/result'
+import type { CheckRow, NotebookModel } from '../../kernels/api'
 import { CheckLineView, FormalView, type BlockHost, type BlockView } from './blocks'
 import { el } from './dom'
 import { digest } from './exports'

@@ -1,6 +1,6 @@
 // Reading a notebook file chosen by the user. A file is taken only when it is UTF-8 text and the
 // kernel reads it without errors; otherwise nothing is added and the reasons name line and column.
-import type { NotebookModel } from '../../kernels/language/model'
+import type { NotebookModel } from '../../kernels/api'
 
 /** Why an import was refused. */
 export class ImportRefused extends Error {

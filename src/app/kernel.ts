@@ -3,8 +3,7 @@
 // Stopping uses a shared flag when the page is cross-origin isolated; otherwise the run worker is
 // ended and a fresh one started (the row then has no result at all, and the page says so).
 import * as Comlink from 'comlink'
-import type { NotebookModel, RowPlan } from '../../kernels/api'
-import type { CheckRow, Progress } from '../../kernels/result'
+import type { CheckRow, NotebookModel, Progress, RowPlan } from '../../kernels/api'
 import type { KernelApi } from './worker'
 
 /** Raised by `run` when the user stopped a check that could not be stopped gently. */

@@ -1,6 +1,6 @@
 // Shelf operations on whole notebooks: open, create, rename, what follows a delete, import, and
 // the first opening of the page. The page owns the open notebook; this decides which one it is.
-import type { NotebookModel } from '../../kernels/language/model'
+import type { NotebookModel } from '../../kernels/api'
 import { ImportRefused, decodeText, importProblems } from './import-file'
 import { Shelf, newId, type StoredNotebook } from './store'
 import { withTitle } from './title'

@@ -3,7 +3,7 @@
 // diagrams, the caution, and the notebook's SHA-256. No scripts: a Content-Security-Policy that
 // allows none makes that a property of the file, not only of how we wrote it. Math is MathML, which
 // browsers typeset without KaTeX's fonts.
-import type { CheckRow } from '../../kernels/result'
+import type { CheckRow } from '../../kernels/api'
 import { DIAGRAM_CSS } from './diagram'
 import { propertiesToTex } from './formula-tex'
 import { html, raw, type Markup } from './html'

@@ -2,7 +2,7 @@
 // `nb:<id>`, the id of the open notebook under `open`, and check results under `result:<sha256>`.
 // Every write reports failure to the caller (quota, private mode): the page shows it, never hides it.
 import { createStore, del, entries, get, set, type UseStore } from 'idb-keyval'
-import type { CheckRow } from '../../kernels/result'
+import type { CheckRow } from '../../kernels/api'
 import { titleOf } from './title'
 
 /** A stored notebook. */

@@ -1,7 +1,7 @@
 // The notebook summary at the top of the page and the report: how many rows hold, are violated,
 // are inconclusive, could not run or are out of date (the same tally the command line prints),
 // with a link to every row that does not hold, and the caution about model verdicts, said once.
-import type { CheckRow } from '../../kernels/result'
+import type { CheckRow } from '../../kernels/api'
 import { html, type Markup } from './html'
 import { CAUTION, VERDICT_SHAPES, isModelError, notRun, shownVerdict, wasStopped } from './results'
 

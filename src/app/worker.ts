@@ -2,8 +2,7 @@
 // values: the notebook text goes in (the worker keeps the model of the last text it read, so a run
 // does not ship the model back and forth), rows and diagnostics come out.
 import * as Comlink from 'comlink'
-import { analyzeNotebook, planRows, runPlannedRow, type NotebookModel, type RowPlan } from '../../kernels/api'
-import type { CheckRow, Progress } from '../../kernels/result'
+import { analyzeNotebook, planRows, runPlannedRow, type CheckRow, type NotebookModel, type Progress, type RowPlan } from '../../kernels/api'
 
 let lastText: string | null = null
 let lastModel: NotebookModel | null = null

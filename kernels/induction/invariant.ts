@@ -10,7 +10,7 @@ import { ModelSetupError } from '../model/errors'
 import type { Instance } from '../model/instance'
 import { compileTerm } from '../model/observe'
 import { statePredicate } from '../logic/predicate'
-import type { Layout } from '../model/layout'
+import { channelIndex, type Layout } from '../model/layout'
 import { toBool, toInt, truncDiv, truncMod } from './encode'
 import type { StateVars } from './space'
 import type { Z3 } from './solver'
@@ -97,7 +97,7 @@ function term(z: Z3, layout: Layout, constants: number[], t: Term, a: number[], 
       const from = proc(layout.n, t.from, a)
       const to = proc(layout.n, t.to, a)
       if (from === to) return z.Bool.val(false)
-      const c = from * (layout.n - 1) + (to < from ? to : to - 1)
+      const c = channelIndex(layout.n, from, to)
       const m = layout.messages[t.message]
       const any: B[] = []
       for (let v = m.base; v < m.base + m.count; v++) any.push(...s.chan[c][v])

@@ -1,13 +1,13 @@
 // The front end in one call: notebook text to a `NotebookModel` with every diagnostic. Never
 // throws, whatever the input: an internal failure becomes a diagnostic, not a stack trace.
 import { errorText } from '../base/error-text'
-import { BlockContext, children } from './context'
+import { BlockContext, children, hasError } from './context'
 import { CheckScope, resolveCheck } from './check'
 import type { BlockRef, CheckModel, Diagnostic, NotebookModel, PropertyDecl, ProtocolModel } from './model'
 import { readNotebook } from './notebook'
 import { LineMap } from './positions'
 import { declareProperty } from './property'
-import { hasError, resolveProtocol } from './protocol'
+import { resolveProtocol } from './protocol'
 import { parseBlock, reportSyntaxErrors } from './syntax'
 
 const KIND_OF: Record<string, BlockRef['kind']> = { ProtocolDecl: 'protocol', PropertyDecl: 'property', CheckDecl: 'check' }

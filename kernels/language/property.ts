@@ -3,10 +3,9 @@
 // atoms are resolved per check; an atom that a protocol cannot give meaning to is reported at the
 // atom, naming the check.
 import type { SyntaxNode } from '@lezer/common'
-import { BlockContext, children } from './context'
+import { ARITH, BlockContext, binaryOperator, children, COMPARE, expressionChildren } from './context'
 import type { Formula, ProcRef, PropertyModel, ProtocolModel, Span, Term } from './model'
-import { binaryOperator, expressionChildren } from './protocol'
-import { BOOL, INT, sameSort, Sort, sortName, sortOf } from './sorts'
+import { BOOL, comparisonProblem, INT, integerLiteral, sameSort, Sort, sortName, sortOf } from './sorts'
 import { didYouMean } from './suggest'
 
 /** A declared property with the syntax it was written in, resolved later per check. */
@@ -62,8 +61,6 @@ export function resolveProperty(decl: DeclaredProperty, protocol: ProtocolModel,
   }
 }
 
-const COMPARE = new Set(['=', '!=', '<', '<=', '>', '>='])
-const ARITH = new Set(['+', '-', '*', '/', '%'])
 const FORMULA_BINARY = new Set(['and', 'or', 'implies', 'iff', 'until', 'unless'])
 
 class PropertyResolver {
@@ -185,7 +182,11 @@ class PropertyResolver {
     const span = ctx.span(node)
     const text = ctx.text(node)
     switch (node.name) {
-      case 'Number': return { t: { k: 'lit', value: Number(text), span }, sort: INT }
+      case 'Number': {
+        const read = integerLiteral(text)
+        if ('problem' in read) return this.error(node, read.problem)
+        return { t: { k: 'lit', value: read.value, span }, sort: INT }
+      }
       case 'Boolean': return { t: { k: 'lit', value: text === 'true' ? 1 : 0, span }, sort: BOOL }
       case 'ParenExpression': return this.term(expressionChildren(node)[0], expected)
       case 'Negation': {
@@ -265,10 +266,8 @@ class PropertyResolver {
           const l = this.term(ln)
           const r = this.term(rn, l?.sort)
           if (!l || !r) return null
-          if (op !== '=' && op !== '!=' && (l.sort.k !== 'int' || r.sort.k !== 'int')) {
-            return this.error(node, `\`${op}\` compares integers, but this compares ${sortName(l.sort)} with ${sortName(r.sort)}; use \`=\` or \`!=\``)
-          }
-          if (!sameSort(l.sort, r.sort)) return this.error(node, `this compares ${sortName(l.sort)} with ${sortName(r.sort)}; compare values of the same type`)
+          const problem = comparisonProblem(op, l.sort, r.sort)
+          if (problem) return this.error(node, problem)
           return { t: { k: 'bin', op: op as '=', left: l.t, right: r.t, span }, sort: BOOL }
         }
         return this.error(node, `\`${op}\` joins conditions and cannot stand inside a comparison; add parentheses around the comparisons`)

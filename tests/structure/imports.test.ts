@@ -104,6 +104,13 @@ describe('imports', () => {
     expect(cycles(Object.keys(MAY_IMPORT), (s) => MAY_IMPORT[s])).toEqual([])
   })
 
+  it('measures the stages in the benchmark, not the runner', () => {
+    const bench = sourceFiles('bench')
+    const reach = bench.flatMap((f) => importsOf(f, known)).filter((e) => e.to === 'kernels/run.ts' || e.to === 'kernels/api.ts')
+    expect(bench.length).toBeGreaterThan(3)
+    expect(reach.map((e) => `${e.from} -> ${e.to}`)).toEqual([])
+  })
+
   it('keeps the kernel free of the page and the command line', () => {
     expect(edges.filter((e) => e.from.startsWith('kernels/') && e.to.startsWith('src/')).map((e) => `${e.from} -> ${e.to}`)).toEqual([])
   })

@@ -15,11 +15,6 @@ const MAX_CLASS_LINES = 300
 const PENDING = [
   'kernels/explore/reach.ts explore',
   'kernels/language/protocol.ts ProtocolResolver',
-  'kernels/language/protocol.ts expr',
-  'kernels/model/exec.ts Program',
-  'kernels/model/layout.ts makeLayout',
-  'kernels/model/tick.ts TickEngine',
-  'kernels/model/tick.ts generate',
 ]
 
 function tooLong(dir: string): Extent[] {

@@ -6,6 +6,7 @@ import { parseCases } from './parse'
 import { productCases } from './product'
 import { reductionCases } from './reduction'
 import { temporalCases } from './temporal'
+import { translationCases } from './translation'
 
 const json = process.argv.includes('--json')
 const root = new URL('../', import.meta.url)
@@ -15,6 +16,7 @@ const baseline = hashBaseline()
 const cases = exploreCases()
 const product = productCases(root)
 const temporal = temporalCases()
+const translation = translationCases()
 const reduction = reductionCases()
 const induction = await inductionCases(60)
 
@@ -27,6 +29,7 @@ const report = {
   parse,
   product,
   temporal,
+  translation,
   reduction,
   induction,
 }
@@ -44,6 +47,11 @@ if (json) {
   console.log('Temporal product (product states per second, against plain exploration)')
   for (const p of product) {
     console.log(`  ${p.name.padEnd(48)} N=${p.processes}  ${f(p.states).padStart(9)} states ${f(p.statesPerSecond).padStart(10)}/s   ${f(p.productStates).padStart(9)} product states ${f(p.productStatesPerSecond).padStart(10)}/s  holds=${p.holds}`)
+  }
+  console.log('Translation of the negated property (pipeline against the tableau alone, same budget; - = over budget)')
+  for (const t of translation) {
+    const n = (x: number | null) => (x === null ? '-' : f(x))
+    console.log(`  ${t.name.padEnd(48)} ${n(t.states).padStart(7)} states ${n(t.transitions).padStart(9)} transitions ${f(t.work).padStart(10)} work ${t.seconds.toFixed(2)} s   tableau alone: ${n(t.baselineStates).padStart(7)} states ${f(t.baselineWork).padStart(10)} work ${t.baselineSeconds.toFixed(2)} s`)
   }
   console.log('Temporal rows against the invariant row of the same instance (goal: at most 2x; B = bytes per reachable state)')
   for (const t of temporal) {

@@ -41,6 +41,8 @@ export interface RunOptions {
    * `RECORD_EDGE_BUDGET` edges.
    */
   recomputeEdges?: boolean
+  /** Temporal rows: the work budget of translating the negated property (`TRANSLATION_BUDGET` by default). */
+  translationBudget?: number
 }
 
 /** The rows of one property of one check: sizes (outer) times constant settings (inner, last sweep item fastest). */

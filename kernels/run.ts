@@ -13,7 +13,7 @@ import { explore, type ExploreProgress, type ExploreResult } from './explore/rea
 import { atomBands, lassoCounterexample, modelErrorCounterexample, traceCounterexample } from './explore/trace'
 import { fromModel } from './logic/ltl'
 import { statePredicate } from './logic/predicate'
-import { checkLtl, type System } from './logic/product'
+import { checkLtl, negationAutomaton, type System } from './logic/product'
 import { MAX_TEMPORAL_PROCESSES } from './language/limits'
 import { ModelSetupError, PropertyFault } from './model/errors'
 import { compileInstance, type Instance } from './model/instance'
@@ -316,6 +316,8 @@ function runTemporal(route: Route): CheckRow {
   }
   let productNodes = 0
   const graph = recorder.graph(r.states)
+  const ltl = fromModel(prop.formula, (t) => terms.indexOf(t))
+  let negated: ReturnType<typeof negationAutomaton> | undefined
   for (const a of route.chosen) {
     const compiled = terms.map((t) => compileTerm(inst, t, a))
     let sys: System
@@ -332,19 +334,35 @@ function runTemporal(route: Route): CheckRow {
       row.counterexample = modelErrorCounterexample(inst, again.store, again.trace, again.error)
       return row
     }
-    const ltl = fromModel(prop.formula, (t) => terms.indexOf(t))
     let stoppedByLimit = false
+    const report = () => {
+      const seconds = (performance.now() - route.t0) / 1000
+      route.progress?.({ states: r.states, transitions: r.transitions, statesPerSecond: seconds > 0 ? r.states / seconds : 0, seconds })
+    }
+    // One translation for every assignment (the formula over atom numbers is the same).
+    negated ??= negationAutomaton(ltl, { shouldStop: opts.shouldStop, translation: { onProgress: report, budget: opts.translationBudget } })
+    if (!('states' in negated)) {
+      // The translation gave up (stopped, or over budget): inconclusive, never a verdict.
+      row.note = negated.stopped ? 'the check was stopped before the temporal search finished'
+        : `property \`${prop.name}\` was not checked: ${negated.reason}; split it into several properties or simplify it`
+      return row
+    }
     const v = checkLtl(sys, ltl, {
+      automaton: negated,
       shouldStop: () => stoppedByLimit || (opts.shouldStop?.() ?? false),
       onProgress: (nodes) => {
         if (nodes > limit * 8) stoppedByLimit = true
-        const seconds = (performance.now() - route.t0) / 1000
-        route.progress?.({ states: r.states, transitions: r.transitions, statesPerSecond: seconds > 0 ? r.states / seconds : 0, seconds })
+        report()
       },
     })
     productNodes = Math.max(productNodes, v.nodes)
     if (v.stopped || stoppedByLimit) {
       row.note = 'the check was stopped before the temporal search finished'
+      return row
+    }
+    if (v.holds === null) {
+      // Too many acceptance sets besides the fairness sets: inconclusive, never a verdict.
+      row.note = `property \`${prop.name}\` was not checked: ${v.reason}; split it into several properties or simplify it`
       return row
     }
     if (v.holds === false) {

@@ -211,15 +211,15 @@ export function systemOf(inst: Instance, r: ExploreResult, g: FairGraph | null, 
   const states = store.size
   // Every reachable state's atoms, computed now: an atom that faults (a division by zero) on any
   // reachable state throws here, before the search, as the runner expects.
-  const masks = new Int32Array(states)
+  // A row of AW words per state: atom k is bit k % 32 of word k / 32.
+  const AW = Math.max(1, Math.ceil(atoms.length / 32))
+  const masks = new Int32Array(states * AW)
   for (let s = 0; s < states; s++) {
-    let m = 0
-    for (let k = 0; k < atoms.length; k++) if (atoms[k](data, s * W)) m |= 1 << k
-    masks[s] = m
+    for (let k = 0; k < atoms.length; k++) if (atoms[k](data, s * W)) masks[s * AW + (k >>> 5)] |= 1 << (k & 31)
   }
-  const atomsOf = (s: number): number => masks[s]
+  const atomsOf = AW === 1 ? (s: number): number => masks[s] : (s: number, w = 0): number => (w < AW ? masks[s * AW + w] : 0)
   const initial = initialIds(inst, store)
-  const base: Omit<System, 'successors'> = { fairnessSets: g ? g.fairnessSets : fairMarks(inst).fairnessSets, initial: () => initial, atoms: atomsOf, states }
+  const base: Omit<System, 'successors'> = { fairnessSets: g ? g.fairnessSets : fairMarks(inst).fairnessSets, initial: () => initial, atoms: atomsOf, atomWords: AW, states }
   if (g) {
     const { start, target, marks } = g
     return {

@@ -85,7 +85,7 @@ function analyze(text: string): NotebookModel {
     const c = resolveCheck(node, ctx, scope, at)
     if (c) checks.push(c)
   }
-  return { title: outline.title ?? headingTitle(text), blocks: outline.blocks, protocols, properties, checks, diagnostics: tidy(diagnostics) }
+  return { title: outline.title, blocks: outline.blocks, protocols, properties, checks, diagnostics: tidy(diagnostics) }
 }
 
 /** Sorted by position; the same message at the same place (a property checked twice) once. */
@@ -99,10 +99,4 @@ function tidy(ds: Diagnostic[]): Diagnostic[] {
     out.push(d)
   }
   return out
-}
-
-/** The first level-1 heading, when there is no front-matter title. */
-function headingTitle(text: string): string | null {
-  const m = /(?:^|[\r\n])#[ \t]+([^\r\n]+?)[ \t#]*(?=[\r\n]|$)/.exec(text)
-  return m ? m[1] : null
 }

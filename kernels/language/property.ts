@@ -6,6 +6,7 @@ import type { SyntaxNode } from '@lezer/common'
 import { ARITH, BlockContext, binaryOperator, children, COMPARE, expressionChildren } from './context'
 import type { Formula, ProcRef, PropertyModel, ProtocolModel, Span, Term } from './model'
 import { BOOL, comparisonProblem, INT, integerLiteral, sameSort, Sort, sortName, sortOf } from './sorts'
+import { MAX_ATOMS } from './limits'
 import { didYouMean } from './suggest'
 
 /** A declared property with the syntax it was written in, resolved later per check. */
@@ -49,6 +50,19 @@ export function resolveProperty(decl: DeclaredProperty, protocol: ProtocolModel,
   const r = new PropertyResolver(decl, protocol, checkLine)
   const formula = r.formula(decl.body)
   if (!formula || r.failed) return null
+  // The runner numbers the atoms as atomsOf does (each atom term once); the product keeps a row of
+  // them per state, so their number is capped (README, Limits).
+  const atoms = new Set<Term>()
+  const count = (f: Formula): void => {
+    if (f.k === 'atom') atoms.add(f.term)
+    else if ('arg' in f) count(f.arg)
+    else if ('left' in f) { count(f.left); count(f.right) }
+  }
+  count(formula)
+  if (atoms.size > MAX_ATOMS) {
+    decl.ctx.error(decl.body, `property \`${decl.name}\` has ${atoms.size} atoms (conditions on the state), more than the ${MAX_ATOMS} a property may have; split it into several properties`)
+    return null
+  }
   return {
     name: decl.name,
     vars: decl.vars,

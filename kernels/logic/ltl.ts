@@ -5,9 +5,13 @@
 // - as written (every operator, from `fromModel` or the constructors);
 // - negation normal form (`nnf`): only true, false, atom, not-atom, and, or, next, until, release;
 // - simplified NNF (`simplify`): NNF rewritten with published rules, the input of `buildAutomaton`.
+import { MAX_ATOMS } from '../language/limits'
 import type { Formula, Term } from '../language/model'
 
-/** An LTL formula. Atoms are numbers 0..31, so a set of atoms fits a 32-bit mask. */
+/**
+ * An LTL formula. Atoms are numbers 0..MAX_ATOMS-1; a set of atoms is a row of 32-bit words
+ * (atom i is bit i % 32 of word i / 32), one word while a formula uses at most 32 atoms.
+ */
 export type Ltl =
   | { readonly op: 'true' }
   | { readonly op: 'false' }
@@ -24,15 +28,15 @@ export type UnaryOp = 'not' | 'next' | 'always' | 'eventually'
 /** The operators that take two arguments. `release` is the dual of `until`; `unless` is weak until. */
 export type BinaryOp = 'and' | 'or' | 'implies' | 'iff' | 'until' | 'release' | 'unless'
 
-/** The largest number of atoms a formula may use (atom sets are 32-bit masks). */
-export const MAX_ATOMS = 32
+/** The largest number of distinct atoms a formula may use (language/limits.ts). */
+export { MAX_ATOMS }
 
 /** The formula that every word satisfies. */
 export const TRUE: Ltl = { op: 'true' }
 /** The formula that no word satisfies. */
 export const FALSE: Ltl = { op: 'false' }
 
-/** Atom number `n` (0..31). */
+/** Atom number `n` (0..MAX_ATOMS-1). */
 export function atom(n: number): Ltl {
   if (!Number.isInteger(n) || n < 0 || n >= MAX_ATOMS) throw new RangeError(`atom number ${n} is outside 0..${MAX_ATOMS - 1}`)
   return { op: 'atom', atom: n }
@@ -201,6 +205,37 @@ function neg(f: Ltl): Ltl {
   }
 }
 
+/**
+ * The number of nodes `nnf(f)` has as a tree, computed without building it (it is exponential in
+ * the nesting of `iff` over temporal parts), so that a caller can refuse before expanding.
+ */
+export function nnfSize(f: Ltl): number {
+  const memo = new Map<Ltl, [number, number]>()
+  const go = (g: Ltl): [number, number] => {
+    let r = memo.get(g)
+    if (r) return r
+    switch (g.op) {
+      case 'true': case 'false': r = [1, 1]; break
+      case 'atom': r = [1, 2]; break
+      case 'not': { const [p, n] = go(g.arg); r = [n, p]; break }
+      case 'next': { const [p, n] = go(g.arg); r = [1 + p, 1 + n]; break }
+      case 'always': case 'eventually': { const [p, n] = go(g.arg); r = [2 + p, 2 + n]; break }
+      default: {
+        const [lp, ln] = go(g.left), [rp, rn] = go(g.right)
+        switch (g.op) {
+          case 'implies': r = [1 + ln + rp, 1 + lp + rn]; break
+          case 'iff': r = [3 + lp + rp + ln + rn, 3 + lp + rp + ln + rn]; break
+          case 'unless': r = [2 + lp + 2 * rp, 2 + ln + 2 * rn]; break
+          default: r = [1 + lp + rp, 1 + ln + rn]
+        }
+      }
+    }
+    memo.set(g, r)
+    return r
+  }
+  return go(f)[0]
+}
+
 /** True when the formula is in negation normal form (see `nnf`). */
 export function isNnf(f: Ltl): boolean {
   switch (f.op) {
@@ -334,4 +369,84 @@ function mkRelease(a: Ltl, b: Ltl): Ltl {
   if (a.op === 'next' && b.op === 'next') return mkNext(mkRelease(a.arg, b.arg))
   if (a.op === 'false' && b.op === 'release') return mkRelease(FALSE, b.right)
   return release(a, b)
+}
+
+
+/** Whether the formula has no temporal operator (it speaks of one state only). */
+export function isStateFormula(f: Ltl): boolean {
+  switch (f.op) {
+    case 'true': case 'false': case 'atom': return true
+    case 'not': return isStateFormula(f.arg)
+    case 'next': case 'always': case 'eventually': case 'until': case 'release': case 'unless': return false
+    default: return isStateFormula(f.left) && isStateFormula(f.right)
+  }
+}
+
+/**
+ * The truth of a temporal-free formula in one state, whose atoms are read a 32-bit word at a time:
+ * atom i holds when bit i % 32 of `atomWord(i >>> 5)` is set. `iff` is evaluated as it stands, so
+ * a chain of them costs its length, not the size of its negation normal form.
+ */
+export function stateHolds(f: Ltl, atomWord: (word: number) => number): boolean {
+  switch (f.op) {
+    case 'true': return true
+    case 'false': return false
+    case 'atom': return ((atomWord(f.atom >>> 5) >>> (f.atom & 31)) & 1) === 1
+    case 'not': return !stateHolds(f.arg, atomWord)
+    case 'and': return stateHolds(f.left, atomWord) && stateHolds(f.right, atomWord)
+    case 'or': return stateHolds(f.left, atomWord) || stateHolds(f.right, atomWord)
+    case 'implies': return !stateHolds(f.left, atomWord) || stateHolds(f.right, atomWord)
+    case 'iff': return stateHolds(f.left, atomWord) === stateHolds(f.right, atomWord)
+    default: throw new Error(`stateHolds expects a formula without temporal operators, got '${f.op}'`)
+  }
+}
+
+/** A formula over state predicates: atom i of `formula` stands for the state formula `predicates[i]`. */
+export interface Abstraction {
+  formula: Ltl
+  /** Temporal-free formulas over the original atoms; absent when `formula` is the input itself. */
+  predicates?: Ltl[]
+}
+
+/**
+ * Replaces every maximal temporal-free subformula by one atom, a predicate on states, so that the
+ * translation never expands the propositional structure inside a state (a chain of `iff` over
+ * state formulas is one letter, not an exponential negation normal form). A subformula and its
+ * negation share the predicate (`not g` becomes the negated atom of g); equal subformulas share it
+ * too. The word a run of the system spells over the predicates is determined by its states, and
+ * the formula over predicates holds of that word exactly when the input holds of the original one
+ * (each predicate is evaluated in the state it speaks of), so verdicts are kept. When every
+ * maximal temporal-free subformula is already an atom, a negated atom or a constant, nothing is
+ * replaced and `predicates` is absent.
+ */
+export function abstractStates(f: Ltl): Abstraction {
+  const maximal: Ltl[] = []
+  const collect = (g: Ltl): void => {
+    if (isStateFormula(g)) { maximal.push(g); return }
+    if ('arg' in g) collect(g.arg)
+    else if ('left' in g) { collect(g.left); collect(g.right) }
+  }
+  collect(f)
+  const literal = (g: Ltl) => g.op === 'true' || g.op === 'false' || g.op === 'atom' || (g.op === 'not' && g.arg.op === 'atom')
+  if (maximal.every(literal)) return { formula: f }
+  const predicates: Ltl[] = []
+  const ids = new Map<string, number>()
+  const replace = (g: Ltl): Ltl => {
+    if (isStateFormula(g)) {
+      let negated = false
+      while (g.op === 'not') { negated = !negated; g = g.arg }
+      if (g.op === 'true' || g.op === 'false') return (g.op === 'true') !== negated ? TRUE : FALSE
+      const k = key(g)
+      let id = ids.get(k)
+      if (id === undefined) { id = predicates.length; predicates.push(g); ids.set(k, id) }
+      const a: Ltl = { op: 'atom', atom: id }
+      return negated ? not(a) : a
+    }
+    switch (g.op) {
+      case 'not': case 'next': case 'always': case 'eventually': return { op: g.op, arg: replace(g.arg) }
+      case 'true': case 'false': case 'atom': return g
+      default: return { op: g.op, left: replace(g.left), right: replace(g.right) }
+    }
+  }
+  return { formula: replace(f), predicates }
 }

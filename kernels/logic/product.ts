@@ -8,7 +8,7 @@
 // q -> q' with the label of q' holding of s'. Its marks are the system edge's fairness marks
 // (bits 0..f-1) together with q's acceptance sets shifted above them (bits f..f+a-1): q's sets,
 // the source's, are the automaton's transition marks (see automaton.ts).
-import { type Automaton, allAcceptance, labelHolds, ltlToAutomaton } from './automaton'
+import { type Automaton, type TranslationOptions, TranslationAborted, allAcceptance, letterOf, ltlToAutomaton } from './automaton'
 import { Int32Buffer } from '../base/buffer'
 import { type EdgeSink, type EmptinessOptions, type MarkedGraph, findAcceptingLasso } from './emptiness'
 import { type Ltl, not } from './ltl'
@@ -20,8 +20,13 @@ export interface System {
   initial(): number[]
   /** Appends the successors of `s` to `to` and the fairness marks of each edge (bits 0..f-1) to `fair`. */
   successors(s: number, to: EdgeSink, fair: EdgeSink): void
-  /** The mask of the atoms that hold in state s (bit i = atom i). */
-  atoms(s: number): number
+  /**
+   * The atoms that hold in state s, one 32-bit word at a time: word w has atom 32w + i at bit i.
+   * A system whose formulas use at most 32 atoms may ignore `word` (it is then always 0).
+   */
+  atoms(s: number, word?: number): number
+  /** Words of `atoms` the system can answer (1 when absent): at least ceil(atoms / 32) for the formula checked. */
+  atomWords?: number
   /** f: the number of fairness sets; a fair run passes infinitely often through edges marked with each. */
   fairnessSets: number
   /**
@@ -48,11 +53,48 @@ export type ProductGraph = MarkedGraph & {
   readonly allMarks: number
 }
 
+/**
+ * Each system state's letter row for the automaton (see automaton.ts `letterOf`), computed once per
+ * state when first asked for: `at(s)` is where the row of s starts in `rows`.
+ */
+class Letters {
+  rows: Uint32Array
+  private used = 0
+  private readonly dense: Int32Array | null
+  private readonly hashed: Map<number, number> | null
+  constructor(private readonly sys: System, private readonly aut: Automaton) {
+    const W = aut.labelWords
+    this.rows = new Uint32Array(W * 64)
+    this.dense = sys.states !== undefined ? new Int32Array(sys.states).fill(-1) : null
+    this.hashed = this.dense ? null : new Map()
+  }
+  at(s: number): number {
+    let o = this.dense ? this.dense[s] : this.hashed!.get(s) ?? -1
+    if (o >= 0) return o
+    const W = this.aut.labelWords
+    if (this.used + W > this.rows.length) {
+      const grown = new Uint32Array(this.rows.length * 2)
+      grown.set(this.rows)
+      this.rows = grown
+    }
+    o = this.used
+    this.used += W
+    letterOf(this.aut, (w) => this.sys.atoms(s, w), this.rows, o)
+    if (this.dense) this.dense[s] = o
+    else this.hashed!.set(s, o)
+    return o
+  }
+}
+
 /** The product of `sys` with `aut`; see the file comment for the label and mark conventions. */
 export function productGraph(sys: System, aut: Automaton): ProductGraph {
   const f = sys.fairnessSets
   if (f + aut.acceptanceSets > 31) {
     throw new Error(`${f} fairness sets and ${aut.acceptanceSets} acceptance sets exceed the 31 marks the product supports`)
+  }
+  const atomWords = Math.ceil(aut.atoms / 32)
+  if (atomWords > (sys.atomWords ?? 1)) {
+    throw new Error(`the formula reads ${aut.atoms} atoms but the system answers only ${32 * (sys.atomWords ?? 1)}`)
   }
   const Q = aut.states
   const dense = sys.states !== undefined && sys.states * Q <= DENSE_NODES
@@ -60,6 +102,22 @@ export function productGraph(sys: System, aut: Automaton): ProductGraph {
   const id = pairs ? (s: number, q: number) => pairs.id(s, q) : (s: number, q: number) => s * Q + q
   const { succStart, succ, accept, mustTrue, mustFalse } = aut
   const to = new Int32Buffer(), fair = new Int32Buffer()
+  const W = aut.labelWords
+  // One word of atoms read directly (the common case); otherwise each state's row, computed once.
+  const direct = !aut.predicates && W === 1
+  const letters = direct ? null : new Letters(sys, aut)
+  const holds = (r: number, t: number): boolean => {
+    if (direct) {
+      const a = sys.atoms(t, 0)
+      return ((a & mustTrue[r]) ^ mustTrue[r]) === 0 && (a & mustFalse[r]) === 0
+    }
+    const o = letters!.at(t), rows = letters!.rows
+    for (let w = 0; w < W; w++) {
+      const a = rows[o + w], mt = mustTrue[r * W + w]
+      if ((((a & mt) ^ mt) | (a & mustFalse[r * W + w])) !== 0) return false
+    }
+    return true
+  }
   const allMarks = ((f === 0 ? 0 : 2 ** f - 1) | (allAcceptance(aut) << f)) | 0
   return {
     allMarks,
@@ -68,10 +126,9 @@ export function productGraph(sys: System, aut: Automaton): ProductGraph {
     initial() {
       const ids: number[] = []
       for (const s of sys.initial()) {
-        const a = sys.atoms(s)
         for (let i = 0; i < aut.initial.length; i++) {
           const q = aut.initial[i]
-          if (labelHolds(aut, q, a)) ids.push(id(s, q))
+          if (holds(q, s)) ids.push(id(s, q))
         }
       }
       return ids
@@ -87,14 +144,21 @@ export function productGraph(sys: System, aut: Automaton): ProductGraph {
       const td = to.data, fd = fair.data
       for (let i = 0; i < to.length; i++) {
         const t = td[i]
-        const a = sys.atoms(t)
         const m = (fd[i] | acc) | 0
-        for (let j = from; j < end; j++) {
-          const r = succ[j]
-          // labelHolds(aut, r, a), inlined: this is the innermost loop of the whole check.
-          if (((a & mustTrue[r]) ^ mustTrue[r]) === 0 && (a & mustFalse[r]) === 0) {
-            out.push(id(t, r))
-            marks.push(m)
+        if (direct) {
+          const a = sys.atoms(t, 0)
+          for (let j = from; j < end; j++) {
+            const r = succ[j]
+            // labelHolds(aut, r, a), inlined: this is the innermost loop of the whole check.
+            if (((a & mustTrue[r]) ^ mustTrue[r]) === 0 && (a & mustFalse[r]) === 0) {
+              out.push(id(t, r))
+              marks.push(m)
+            }
+          }
+        } else {
+          for (let j = from; j < end; j++) {
+            const r = succ[j]
+            if (holds(r, t)) { out.push(id(t, r)); marks.push(m) }
           }
         }
       }
@@ -122,14 +186,44 @@ export type LtlVerdict =
       edges: number
     }
   | { holds: null; stopped: true; nodes: number; edges: number }
+  /** No verdict: the automaton could not be built within its limits; `reason` says which, in one sentence. */
+  | { holds: null; stopped: false; reason: string; nodes: number; edges: number }
+
+/** Options of `checkLtl`: the search's, and the translation's budget and work counters (Stop reaches both). */
+export type CheckLtlOptions = EmptinessOptions & {
+  translation?: Pick<TranslationOptions, 'budget' | 'work' | 'onProgress'>
+  /** The automaton of the negated formula, from `negationAutomaton`, when already built. */
+  automaton?: Automaton
+}
+
+/**
+ * The automaton of the negation of `formula` (what `checkLtl` searches with), or why there is
+ * none: stopped, or a reason in one sentence (over budget, too many acceptance sets). A runner
+ * that checks one formula on several systems translates once and hands it as `opts.automaton`.
+ */
+export function negationAutomaton(formula: Ltl, opts: CheckLtlOptions = {}): Automaton | { stopped: true } | { stopped: false; reason: string } {
+  try {
+    return ltlToAutomaton(not(formula), { ...opts.translation, shouldStop: opts.shouldStop })
+  } catch (e) {
+    if (!(e instanceof TranslationAborted)) throw e
+    return e.reason === 'stopped' ? { stopped: true } : { stopped: false, reason: e.message }
+  }
+}
 
 /**
  * Whether every fair run of `sys` satisfies `formula`: builds the automaton of its negation,
  * then searches the product for a fair accepting lasso (Couvreur, FM'99). A violation comes with
  * its lasso of system states, starting in an initial state.
  */
-export function checkLtl(sys: System, formula: Ltl, opts: EmptinessOptions = {}): LtlVerdict {
-  const aut = ltlToAutomaton(not(formula))
+export function checkLtl(sys: System, formula: Ltl, opts: CheckLtlOptions = {}): LtlVerdict {
+  const aut = opts.automaton ?? negationAutomaton(formula, opts)
+  if (!('states' in aut)) return aut.stopped ? { holds: null, stopped: true, nodes: 0, edges: 0 } : { holds: null, stopped: false, reason: aut.reason, nodes: 0, edges: 0 }
+  if (sys.fairnessSets + aut.acceptanceSets > 31) {
+    return {
+      holds: null, stopped: false, nodes: 0, edges: 0,
+      reason: `the automaton of the property's negation needs ${aut.acceptanceSets} acceptance sets besides the ${sys.fairnessSets} fairness sets, more than the 31 marks the product supports`,
+    }
+  }
   const g = productGraph(sys, aut)
   const r = findAcceptingLasso(g, g.allMarks, opts)
   if (r.kind === 'empty') return { holds: true, stopped: false, nodes: r.nodes, edges: r.edges }

@@ -2,11 +2,11 @@
 // blocks (a CodeMirror editor, its diagnostics, typeset properties, and for checks the findings).
 // A view holds its segment (offsets into the notebook text) and reports edits to its host; it
 // never keeps a copy of the text that could drift from the notebook.
-import type { CheckRow, Progress } from '../../kernels/api'
+import { printProperties, type CheckRow, type Progress } from '../../kernels/api'
 import { button, el } from './dom'
 import { atomColour, counterexampleSvg, filledIn } from './diagram'
+import { parser } from '../../kernels/language/parser.js'
 import { BlockEditor, type NotebookDiagnostic } from './editor'
-import { propertiesToTex } from './formula-tex'
 import { renderProse, toFragment } from './markdown'
 import { findingsMarkdown, findingsMarkup } from './results'
 import type { Segment, SegmentKind } from './segments'
@@ -32,11 +32,18 @@ export interface BlockHost {
 /** Either kind of block view. */
 export type BlockView = ProseView | FormalView
 
+const DECL_OF: Partial<Record<SegmentKind, string>> = { protocol: 'ProtocolDecl', property: 'PropertyDecl', check: 'CheckDecl' }
+
+/** What a formal block defines, read with the kernel's parser: its protocol, its properties, or the protocols it checks. */
 function describeBlock(kind: SegmentKind, content: string): string {
-  if (kind === 'protocol') return /protocol\s+([A-Za-z_]\w*)/.exec(content)?.[1] ?? ''
-  if (kind === 'property') return [...content.matchAll(/^\s*property\s+([A-Za-z_]\w*)/gm)].map((m) => m[1]).join(', ')
-  if (kind === 'check') return [...new Set([...content.matchAll(/^\s*check\s+([A-Za-z_]\w*)/gm)].map((m) => m[1]))].join(', ')
-  return ''
+  const decl = DECL_OF[kind]
+  if (!decl) return ''
+  const names: string[] = []
+  for (let d = parser.parse(content).topNode.firstChild; d; d = d.nextSibling) {
+    const id = d.name === decl ? d.getChild('Identifier') : null
+    if (id) names.push(content.slice(id.from, id.to))
+  }
+  return (kind === 'protocol' ? names.slice(0, 1) : [...new Set(names)]).join(', ')
 }
 
 const KIND_WORDS: Record<SegmentKind, string> = { front: 'front matter', prose: 'text', protocol: 'protocol', property: 'properties', check: 'checks' }
@@ -249,9 +256,10 @@ export class CheckLineView {
     this.status.textContent = text
   }
 
-  progress(p: Progress, rowIndex: number, rowCount: number): void {
+  /** Shows a running row's counts; `where` says which row (`row 2 of 5`, `for the record`). */
+  progress(p: Progress, where: string): void {
     const n = (x: number) => Math.round(x).toLocaleString('en-US')
-    this.status.textContent = `row ${rowIndex + 1} of ${rowCount}: ${p.property} with ${p.processes} ${p.processes === 1 ? 'process' : 'processes'} · ${n(p.states)} states · ${n(p.statesPerSecond)} states/s · ${p.seconds.toFixed(1)} s`
+    this.status.textContent = `${where}: ${p.property} with ${p.processes} ${p.processes === 1 ? 'process' : 'processes'} · ${n(p.states)} states · ${n(p.statesPerSecond)} states/s · ${p.seconds.toFixed(1)} s`
   }
 
   note(text: string): void { this.status.textContent = text }
@@ -302,7 +310,7 @@ export class FormalView {
   refresh(content = this.host.text().slice(this.seg.contentFrom, this.seg.contentTo)): void {
     this.nameEl.textContent = describeBlock(this.kind, content)
     if (this.typeset) {
-      const props = propertiesToTex(content)
+      const props = printProperties(content)
       this.typeset.replaceChildren(...props.map((p) => {
         const item = el('div', { class: 'typeset-item' }, el('span', { class: 'typeset-name' }, p.name))
         if (p.tex) item.append(toFragment(texToHtml(p.tex)))

@@ -4,7 +4,7 @@
 import type { NotebookModel } from '../../kernels/api'
 import { FormalView, type BlockView } from './blocks'
 import { el } from './dom'
-import { lineStarts } from './segments'
+import { offsetOf } from './segments'
 
 /** Hands each formal view its diagnostics; returns the lines for the ones no formal block holds. */
 export function placeDiagnostics(diagnostics: NotebookModel['diagnostics'], views: BlockView[], segmentAt: (offset: number) => number): HTMLElement[] {
@@ -21,8 +21,7 @@ export function placeDiagnostics(diagnostics: NotebookModel['diagnostics'], view
 
 /** Puts the cursor at a notebook line and column, in the editor of the block that holds it. */
 export function jumpTo(text: string, views: BlockView[], segmentAt: (offset: number) => number, line: number, column: number): void {
-  const starts = lineStarts(text)
-  const offset = Math.min((starts[line - 1] ?? text.length) + Math.max(column - 1, 0), text.length)
+  const offset = offsetOf(text, line, column)
   const view = views[segmentAt(offset)]
   if (view instanceof FormalView) view.editor.jumpTo(offset - view.seg.contentFrom)
   else view?.root.scrollIntoView({ block: 'center' })

@@ -1,10 +1,11 @@
 // The findings of the open notebook: what each check line depends on and showed last, running
 // checks in the kernel (one at a time, stoppable), caching rows by the hash of their inputs, and
-// the notebook summary at the top. The page owns the text and the views; this owns the checks.
+// the notebook summary at the top, and the run that makes a verification record (in the kernel
+// worker, which also gives the cache keys their SHA-256). The page owns the text and the views;
+// this owns the checks.
 import type { CheckRow, NotebookModel } from '../../kernels/api'
 import { CheckLineView, FormalView, type BlockHost, type BlockView } from './blocks'
 import { el } from './dom'
-import { digest } from './exports'
 import { importProblems } from './import-file'
 import { StoppedError, type Kernel } from './kernel'
 import { toFragment } from './markdown'
@@ -15,7 +16,7 @@ import { summaryMarkup } from './summary'
 export interface CheckState {
   /** The exact inputs (protocol block, property blocks, check source) as one string. */
   inputs: string
-  /** SHA-256 of `inputs` (or the inputs themselves where Web Crypto is unavailable). */
+  /** The kernel's SHA-256 of `inputs` (or the inputs themselves where Web Crypto is unavailable). */
   key: string
   /** Indices of the segments whose text the inputs come from. */
   deps: Set<number>
@@ -85,24 +86,28 @@ export class Findings {
 
   async update(model: NotebookModel, text: string): Promise<void> {
     const errors = model.diagnostics.some((d) => d.severity === 'error')
-    const next: CheckState[] = []
-    for (let c = 0; c < model.checks.length; c++) {
-      const check = model.checks[c]
+    const found = model.checks.map((check) => {
       const protocol = model.protocols[check.protocol]
       const propBlocks = [...new Map(check.properties.map((p) => [p.block.from, p.block])).values()]
       const inputs = JSON.stringify({ protocol: protocol.block.text, properties: propBlocks.map((b) => b.text), check: check.source })
       const deps = new Set([protocol.block.from, ...propBlocks.map((b) => b.from), check.block.from].map((o) => this.host.segmentAt(o)))
-      const key = await digest(inputs)
+      return { inputs, deps, source: check.source }
+    })
+    const keys = await this.host.kernel.digests(found.map((f) => f.inputs))
+    const next: CheckState[] = []
+    for (let c = 0; c < found.length; c++) {
+      const { inputs, deps, source } = found[c]
+      const key = keys[c]
       let rows = this.memo.get(key) ?? null
       if (!rows) {
         try { rows = (await this.host.shelf.result(key)) ?? null } catch { rows = null }
         if (rows) this.memo.set(key, rows)
       }
-      const previous = this.checks.find((p) => p.source === check.source) ?? this.checks[c]
+      const previous = this.checks.find((p) => p.source === source) ?? this.checks[c]
       const fresh = rows !== null
       const stopped = !fresh && previous?.key === key ? previous.stopped : null
       if (!rows && previous?.rows) rows = previous.rows
-      next.push({ inputs, key, deps, source: check.source, rows, fresh, stopped })
+      next.push({ inputs, key, deps, source, rows, fresh, stopped })
     }
     if (text !== this.host.text()) return
     this.checks = next
@@ -135,12 +140,51 @@ export class Findings {
     if (view instanceof FormalView && view.checkLines.length) void this.runChecks(view.checkLines.map((l) => l.check))
   }
 
-  /** Runs every check whose findings are missing or out of date (quietly when there are none: exports call it). */
-  async runChanged(quiet = false): Promise<void> {
+  /** Runs every check whose findings are missing or out of date. */
+  async runChanged(): Promise<void> {
     await this.host.analysis()
     const todo = this.checks.map((c, i) => (c.fresh ? -1 : i)).filter((i) => i >= 0)
-    if (!todo.length) { if (!quiet) this.host.notice('Every check is up to date.'); return }
+    if (!todo.length) { this.host.notice('Every check is up to date.'); return }
     await this.runChecks(todo)
+  }
+
+  /**
+   * Makes the verification record of the notebook: the kernel worker runs every check and builds
+   * the record as `twofold check --record` does; the rows it ran are shown and kept as findings.
+   * Resolves to the record's file text, or null (with a notice saying why) when none was made.
+   */
+  async record(path: string): Promise<string | null> {
+    if (this.running) { this.host.notice('A check is running; make the record once it has finished.'); return null }
+    const model = await this.host.analysis()
+    const problems = importProblems(model)
+    if (problems.length) { this.host.notice(`Fix the errors first: ${problems[0]}`); return null }
+    const text = this.host.text()
+    this.running = { check: -1, stop: false }
+    this.setAllRunnable(false)
+    const lines = this.checks.map((_, c) => this.lineView(c))
+    for (const l of lines) l?.running(true, 'running for the record…')
+    try {
+      const made = await this.host.kernel.record(text, path, (p) => this.lineView(p.check)?.progress(p, 'for the record'))
+      for (const l of lines) l?.running(false)
+      if (!made) { this.host.notice('No record was made: stopped by you.'); return null }
+      if (this.host.text() === text) this.adopt(made.rows)
+      return made.json
+    } catch (e) {
+      for (const l of lines) l?.running(false)
+      this.host.notice(`No record was made: ${e instanceof StoppedError ? 'stopped by you' : `the kernel failed (${(e as Error)?.message ?? e})`}.`)
+      return null
+    } finally {
+      this.running = null
+      this.setAllRunnable(true)
+      if (this.host.text() !== text) this.host.reanalyze()
+    }
+  }
+
+  /** Shows and keeps the rows of a whole-notebook run (a record) as each check's findings. */
+  private adopt(rows: CheckRow[]): void {
+    const byCheck = new Map<number, CheckRow[]>()
+    for (const r of rows) byCheck.set(r.check, [...(byCheck.get(r.check) ?? []), r])
+    for (const [c, mine] of byCheck) if (this.checks[c]) this.finished(c, this.checks[c].key, mine, null)
   }
 
   /** Runs every check again, up to date or not. */
@@ -189,7 +233,7 @@ export class Findings {
           const plan = await this.host.kernel.plan(text, c)
           planned = plan.length
           for (let r = 0; r < plan.length && !this.running.stop; r++) {
-            rows.push(await this.host.kernel.run(text, plan[r], (p) => this.lineView(c)?.progress(p, r, plan.length)))
+            rows.push(await this.host.kernel.run(text, plan[r], (p) => this.lineView(c)?.progress(p, `row ${r + 1} of ${plan.length}`)))
           }
         } catch (e) {
           this.lineView(c)?.running(false)

@@ -4,7 +4,9 @@
 // ended and a fresh one started (the row then has no result at all, and the page says so).
 import * as Comlink from 'comlink'
 import type { CheckRow, NotebookModel, Progress, RowPlan } from '../../kernels/api'
-import type { KernelApi } from './worker'
+import type { KernelApi, MadeRecord } from './worker'
+
+export type { MadeRecord }
 
 /** Raised by `run` when the user stopped a check that could not be stopped gently. */
 export class StoppedError extends Error {
@@ -33,6 +35,27 @@ export class Kernel {
 
   plan(text: string, check?: number): Promise<RowPlan[]> {
     return this.reader.api.plan(text, check)
+  }
+
+  /** The kernel's SHA-256 of each text (or the text itself, prefixed `text:`, without Web Crypto). */
+  digests(texts: string[]): Promise<string[]> {
+    return this.reader.api.digests(texts)
+  }
+
+  /**
+   * Runs every check and builds the verification record in the run worker, as the command line
+   * does. Resolves to null when `stop` stopped it gently; rejects with StoppedError if `stop` had
+   * to end the worker.
+   */
+  record(text: string, path: string, onProgress: (p: Progress) => void): Promise<MadeRecord | null> {
+    if (this.stopFlag) Atomics.store(this.stopFlag, 0, 0)
+    return new Promise<MadeRecord | null>((resolve, reject) => {
+      this.rejectRun = reject
+      this.runner.api
+        .record(text, path, Comlink.proxy(onProgress), this.stopFlag ?? undefined)
+        .then(resolve, reject)
+        .finally(() => { this.rejectRun = null })
+    })
   }
 
   /** Runs one row; rejects with StoppedError if `stop` had to end the worker. */

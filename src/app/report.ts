@@ -3,13 +3,11 @@
 // diagrams, the caution, and the notebook's SHA-256. No scripts: a Content-Security-Policy that
 // allows none makes that a property of the file, not only of how we wrote it. Math is MathML, which
 // browsers typeset without KaTeX's fonts.
-import type { CheckRow } from '../../kernels/api'
+import { notebookSpans, printProperties, type CheckRow } from '../../kernels/api'
 import { DIAGRAM_CSS } from './diagram'
-import { propertiesToTex } from './formula-tex'
 import { html, raw, type Markup } from './html'
 import { CAUTION, findingsMarkup } from './results'
 import { summaryMarkup } from './summary'
-import { titleOf } from './title'
 import { contentOf, type Segment } from './segments'
 import { texToHtml } from './tex'
 
@@ -68,21 +66,29 @@ a{color:#2f5d50}
 ` + DIAGRAM_CSS
 
 /** Builds the report's HTML text. */
+/** The notebook's first top-level heading when it reads `title` (the kernel's spans find it), else null. */
+function titleHeading(text: string, title: string): { from: number; to: number } | null {
+  const first = notebookSpans(text).headings.find((h) => !h.nested)
+  return first && first.text.trim() === title ? first : null
+}
+
 export function buildReport(input: ReportInput): string {
   const parts: Markup[] = []
   // The title once: the notebook's first heading, when it says the title, gives way to the report's.
-  const firstProse = input.segments.find((s) => s.kind === 'prose')
+  const heading = titleHeading(input.text, input.title)
   input.segments.forEach((seg, i) => {
     const content = contentOf(input.text, seg)
     if (seg.kind === 'front') return
     if (seg.kind === 'prose') {
-      const shown = seg === firstProse && titleOf(content) === input.title ? content.replace(/^\s{0,3}#[ \t]+.*\n?/m, '') : content
+      const shown = heading && heading.from >= seg.contentFrom && heading.to <= seg.contentTo
+        ? input.text.slice(seg.contentFrom, heading.from) + input.text.slice(heading.to, seg.contentTo)
+        : content
       parts.push(raw(input.prose(shown)))
       return
     }
     parts.push(html`<pre class="formal"><span class="kind">${seg.kind}</span>${content}</pre>`)
     if (seg.kind === 'property') {
-      const typeset = propertiesToTex(content).filter((p) => p.tex)
+      const typeset = printProperties(content).filter((p) => p.tex)
       if (typeset.length) parts.push(html`<div class="typeset">${typeset.map((p) => html`<div><b>${p.name}</b>: ${raw(texToHtml(p.tex!, false, true))}</div>`)}</div>`)
     }
     if (seg.kind === 'check') {

@@ -2,11 +2,10 @@
 // side by side, one line per size and constant setting), the counts, the cutoff statement typeset,
 // the rules passed or the reasons (each linking to its line), and the counterexamples. Pure: rows
 // in, markup string out, so the page and the exported report show the same thing.
-import type { CheckRow, CutoffInfo } from '../../kernels/api'
+import { ruleLabel, type CheckRow, type CutoffInfo } from '../../kernels/api'
 import { changesTable, counterexampleSvg } from './diagram'
 import { html, raw, type Markup } from './html'
 import { texToHtml } from './tex'
-import { ruleLabel } from '../../kernels/symmetry/rules'
 
 /** Options for rendering findings. */
 export interface FindingsOptions {

@@ -2,8 +2,10 @@
 // pair of offsets into it, recomputed from the text after every structural edit, and every edit
 // of a block is a replacement of its content span. Formal blocks are the fences whose info string
 // starts with `protocol`, `property` or `check` (language.md); prose is split at headings so that
-// sections can be moved as blocks.
-import MarkdownIt from 'markdown-it'
+// sections can be moved as blocks. The fences, headings and front matter are the kernel reader's
+// spans (kernels/language/spans.ts), so the page and the kernel read one notebook the same way.
+import { LineMap, notebookSpans, type FenceSpan } from '../../kernels/api'
+import { parser } from '../../kernels/language/parser.js'
 
 /** What a segment holds. `front` is the front-matter block between `---` lines. */
 export type SegmentKind = 'front' | 'prose' | 'protocol' | 'property' | 'check'
@@ -21,60 +23,28 @@ export interface Segment {
 }
 
 const FORMAL = new Set(['protocol', 'property', 'check'])
-const md = new MarkdownIt('commonmark')
 
-/** Offsets of the first character of every line (line 1 at index 0). */
-export function lineStarts(text: string): number[] {
-  const starts = [0]
-  for (let i = 0; i < text.length; i++) if (text.charCodeAt(i) === 10) starts.push(i + 1)
-  return starts
-}
-
-/** Converts a 1-based line and column to an offset, clamped to the text. */
+/** Converts a 1-based line and column to an offset, clamped to the text (lines end at LF, CR or CRLF, as the kernel reads them). */
 export function offsetOf(text: string, line: number, column: number): number {
-  const starts = lineStarts(text)
-  const l = Math.min(Math.max(line, 1), starts.length)
-  return Math.min(starts[l - 1] + Math.max(column, 1) - 1, text.length)
-}
-
-/** The length of a front-matter block at the very start of the text (0 when there is none). */
-export function frontMatterLength(text: string): number {
-  const m = /^---[ \t]*\r?\n(?:.*\r?\n)*?---[ \t]*(?:\r?\n|$)/.exec(text)
-  return m ? m[0].length : 0
+  const lines = new LineMap(text)
+  return Math.min(lines.lineStart(Math.max(line, 1)) + Math.max(column, 1) - 1, text.length)
 }
 
 function isBlank(text: string, from: number, to: number): boolean {
   return /^\s*$/.test(text.slice(from, to))
 }
 
+/** A place where a new segment starts: a formal block (with its spans) or a heading (prose). */
+type Cut = { from: number; fence: FenceSpan | null }
+
 /** Splits the notebook text into segments. Pure; the same text always gives the same segments. */
 export function segment(text: string): Segment[] {
-  const starts = lineStarts(text)
-  const lineCount = starts.length
-  const at = (line: number) => (line >= lineCount ? text.length : starts[line]) // 0-based line
-  const front = frontMatterLength(text)
-  const frontLines = front ? text.slice(0, front).split('\n').length - (text.slice(0, front).endsWith('\n') ? 1 : 0) : 0
-  // Blank out the front matter (keeping line numbers) so markdown-it does not read it as prose.
-  const body = front ? '\n'.repeat(frontLines) + text.slice(front) : text
-  const tokens = md.parse(body, {})
-
-  // Cut points: [line, kind, contentFromLine, contentToLine] for formal blocks; headings start prose.
-  type Cut = { line: number; kind: SegmentKind; endLine: number; contentLine: number; contentEndLine: number }
-  const cuts: Cut[] = []
-  for (const t of tokens) {
-    if (t.level !== 0 || !t.map) continue
-    const [a, b] = t.map
-    if (t.type === 'fence' && FORMAL.has(t.info.trim().split(/\s+/)[0])) {
-      // The closing fence is the last mapped line when it is a fence line; an unclosed fence runs to the end.
-      const lastLine = b - 1
-      const lastText = text.slice(at(lastLine), at(lastLine + 1)).trim()
-      const closed = b - a >= 2 && /^(`{3,}|~{3,})$/.test(lastText)
-      cuts.push({ line: a, kind: t.info.trim().split(/\s+/)[0] as SegmentKind, endLine: b, contentLine: a + 1, contentEndLine: closed ? lastLine : b })
-    } else if (t.type === 'heading_open') {
-      cuts.push({ line: a, kind: 'prose', endLine: -1, contentLine: a, contentEndLine: -1 })
-    }
-  }
-
+  const spans = notebookSpans(text)
+  const cuts: Cut[] = [
+    ...spans.fences.filter((f) => !f.nested && FORMAL.has(f.kind)).map((f) => ({ from: f.from, fence: f })),
+    ...spans.headings.filter((h) => !h.nested).map((h) => ({ from: h.from, fence: null })),
+  ].sort((a, b) => a.from - b.from)
+  const front = spans.front?.to ?? 0
   const segs: Segment[] = []
   if (front) segs.push({ kind: 'front', from: 0, to: front, contentFrom: 0, contentTo: front })
   let pos = front
@@ -90,17 +60,12 @@ export function segment(text: string): Segment[] {
     }
     pos = to
   }
-  for (const c of cuts) {
-    const from = at(c.line)
+  for (const { from, fence } of cuts) {
     if (from < pos) continue
-    if (c.kind === 'prose') {
-      pushProse(from)
-      continue
-    }
     pushProse(from)
-    const to = at(c.endLine)
-    segs.push({ kind: c.kind, from, to, contentFrom: at(c.contentLine), contentTo: Math.max(at(c.contentLine), at(c.contentEndLine)) })
-    pos = to
+    if (!fence) continue
+    segs.push({ kind: fence.kind as SegmentKind, from, to: fence.to, contentFrom: fence.contentFrom, contentTo: fence.contentTo })
+    pos = fence.to
   }
   pushProse(text.length)
   if (!segs.length) segs.push({ kind: 'prose', from: 0, to: text.length, contentFrom: 0, contentTo: text.length })
@@ -117,6 +82,21 @@ export function replaceContent(text: string, seg: Segment, content: string): str
   return text.slice(0, seg.contentFrom) + content + text.slice(seg.contentTo)
 }
 
+const DECL = { protocol: 'ProtocolDecl', property: 'PropertyDecl' }
+
+/** The first name a `protocol` or `property` block of the notebook declares, read with the kernel's parser. */
+function firstDeclared(text: string, kind: 'protocol' | 'property'): string | null {
+  for (const f of notebookSpans(text).fences) {
+    if (f.nested || f.kind !== kind) continue
+    const content = text.slice(f.contentFrom, f.contentTo)
+    for (let d = parser.parse(content).topNode.firstChild; d; d = d.nextSibling) {
+      const id = d.name === DECL[kind] ? d.getChild('Identifier') : null
+      if (id) return content.slice(id.from, id.to)
+    }
+  }
+  return null
+}
+
 /** The short template a new block of each kind starts with; a check names the notebook's first protocol and property. */
 export function newBlockText(kind: Exclude<SegmentKind, 'front'>, text = ''): string {
   if (kind === 'prose') return '## New section\n\nWrite the argument here.\n\n'
@@ -126,9 +106,9 @@ export function newBlockText(kind: Exclude<SegmentKind, 'front'>, text = ''): st
       '  state seen[peer]: bool = false\n  on flash from q { seen[q] := true }\n  step { broadcast flash }\n}\n')
   }
   // Properties and checks start from the names the notebook already has, so they read at once.
-  const protocol = /^\s*protocol\s+([A-Za-z_]\w*)/m.exec(text)?.[1] ?? 'lighthouse'
+  const protocol = firstDeclared(text, 'protocol') ?? 'lighthouse'
   if (kind === 'property') return fence('property steady = forall p: always (alive(p) or crashed(p))\n')
-  const property = /^\s*property\s+([A-Za-z_]\w*)/m.exec(text)?.[1] ?? 'steady'
+  const property = firstDeclared(text, 'property') ?? 'steady'
   return fence(`check ${protocol}: ${property}\n`)
 }
 
@@ -170,13 +150,5 @@ export function moveBlock(text: string, index: number, direction: -1 | 1): strin
 
 /** The 1-based line number of an offset in `text`. */
 export function lineAt(text: string, offset: number): number {
-  const starts = lineStarts(text)
-  let lo = 0
-  let hi = starts.length - 1
-  while (lo < hi) {
-    const mid = (lo + hi + 1) >> 1
-    if (starts[mid] <= offset) lo = mid
-    else hi = mid - 1
-  }
-  return lo + 1
+  return new LineMap(text).position(offset).line
 }

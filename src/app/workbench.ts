@@ -305,10 +305,9 @@ export class Workbench {
       segments: () => this.segs,
       segmentAt: (o) => this.segmentAt(o),
       checks: () => this.findings.checks,
-      kernel: this.kernel,
       analysis: () => this.analysis(),
-      runChanged: () => this.findings.runChanged(true),
-      notice: (m) => this.notice(m),
+      digest: async (text) => (await this.kernel.digests([text]))[0],
+      record: (path) => this.findings.record(path),
     }
   }
 }

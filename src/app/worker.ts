@@ -1,8 +1,11 @@
 // The kernel in a Web Worker, exposed through Comlink. A thin wrapper of kernels/api.ts over plain
 // values: the notebook text goes in (the worker keeps the model of the last text it read, so a run
-// does not ship the model back and forth), rows and diagnostics come out.
+// does not ship the model back and forth), rows, diagnostics, digests and records come out.
 import * as Comlink from 'comlink'
-import { analyzeNotebook, planRows, runPlannedRow, type CheckRow, type NotebookModel, type Progress, type RowPlan } from '../../kernels/api'
+import {
+  analyzeNotebook, buildRecord, canonicalJsonPretty, planRows, runNotebook, runPlannedRow, sha256Hex,
+  type CheckRow, type NotebookModel, type Progress, type RowPlan,
+} from '../../kernels/api'
 
 let lastText: string | null = null
 let lastModel: NotebookModel | null = null
@@ -13,6 +16,13 @@ function modelOf(text: string): NotebookModel {
     lastText = text
   }
   return lastModel
+}
+
+/** A made verification record: the rows it holds (to show on the page) and its file text. */
+export interface MadeRecord {
+  rows: CheckRow[]
+  /** The record as canonical JSON, indented, with a final line break (what `twofold check --record` writes). */
+  json: string
 }
 
 /** What the worker offers the page. */
@@ -36,6 +46,27 @@ export const kernelApi = {
       onProgress: onProgress ? (p) => onProgress(p) : undefined,
       shouldStop: stop ? () => Atomics.load(stop, 0) === 1 : undefined,
     })
+  },
+  /**
+   * The SHA-256 of each text (kernels/base/hash.ts), as 64 hex digits. Where Web Crypto is
+   * missing (a page served over plain HTTP), each text itself prefixed `text:` stands in, so the
+   * page can still key its cache; such a key is never written into a record.
+   */
+  async digests(texts: string[]): Promise<string[]> {
+    if (!globalThis.crypto?.subtle) return texts.map((t) => 'text:' + t)
+    return Promise.all(texts.map((t) => sha256Hex(t)))
+  },
+  /**
+   * Runs every check of the notebook and builds its verification record, exactly as
+   * `twofold check --record` does (runNotebook, then buildRecord); `path` is the notebook's name
+   * in the record. `stop` is the shared flag of `run`: a stopped run makes no record (null).
+   */
+  async record(text: string, path: string, onProgress?: (p: Progress) => void, stop?: Int32Array): Promise<MadeRecord | null> {
+    const stopped = () => stop !== undefined && Atomics.load(stop, 0) === 1
+    const report = await runNotebook(text, path, { onProgress: onProgress ? (p) => onProgress(p) : undefined, shouldStop: stop ? stopped : undefined })
+    if (stopped()) return null
+    const record = await buildRecord(report, text, modelOf(text))
+    return { rows: record.checks, json: canonicalJsonPretty(record) + '\n' }
   },
 }
 

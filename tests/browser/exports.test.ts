@@ -3,7 +3,7 @@
 import { readFileSync } from 'node:fs'
 import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { runNotebook } from '../../kernels/api'
+import { analyzeNotebook, buildRecord, canonicalJsonPretty, runNotebook } from '../../kernels/api'
 import { ROOT, openPage, startWorkbench, type Workbench } from './harness'
 
 let bench: Workbench
@@ -24,6 +24,13 @@ describe('exports', () => {
     expect(record.format.name).toBe('twofold-record')
     expect(record.notebook.sha256).toBe(report.notebook.sha256)
     expect(record.checks.map((r: { row: number; verdict: string }) => [r.row, r.verdict])).toEqual(report.checks.map((r) => [r.row, r.verdict]))
+    // The page made it as `twofold check --record` makes it: the same record, apart from its
+    // creation time and the rows' running times.
+    const cli = JSON.parse(canonicalJsonPretty(await buildRecord(await runNotebook(guide, record.notebook.path, {}), guide, analyzeNotebook(guide))))
+    const timeless = (r: { created?: string; checks: { seconds?: number }[] }) => ({ ...r, created: null, checks: r.checks.map((row) => ({ ...row, seconds: null })) })
+    expect(timeless(record)).toEqual(timeless(cli))
+    // Its rows are now the page's findings: every check line is up to date.
+    await page.waitForFunction(() => [...document.querySelectorAll('.check-line')].every((l) => l.classList.contains('fresh')))
     await context.close()
   })
 

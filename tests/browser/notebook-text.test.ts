@@ -2,8 +2,9 @@
 // tiling invariant (segments concatenate back to the text) and hand-read expectations on short
 // fixtures.
 import { describe, expect, it } from 'vitest'
-import { contentOf, deleteBlock, insertBlock, moveBlock, offsetOf, replaceContent, segment } from '../../src/app/segments'
+import { contentOf, deleteBlock, insertBlock, lineAt, moveBlock, newBlockText, offsetOf, replaceContent, segment } from '../../src/app/segments'
 import { titleOf, withTitle } from '../../src/app/title'
+import { analyzeNotebook } from '../../kernels/api'
 
 const harbour = [
   '---',
@@ -78,6 +79,10 @@ describe('block edits', () => {
     expect(tiles(next).map((s) => s.kind).at(-1)).toBe('prose')
     expect(next.startsWith(harbour)).toBe(true)
   })
+  it('starts a new check from the names the blocks declare, not from words in prose or comments', () => {
+    const text = 'protocol words in prose.\n\n```protocol\n// protocol nope\nprotocol quay { timing asynchronous }\n```\n\n```property\nproperty calm = always true\n```\n'
+    expect(newBlockText('check', text)).toBe('```check\ncheck quay: calm\n```\n\n')
+  })
   it('never inserts above the front matter', () => {
     expect(tiles(insertBlock(harbour, 0, 'prose'))[0].kind).toBe('front')
   })
@@ -102,6 +107,13 @@ describe('block edits', () => {
 describe('offsetOf', () => {
   it('maps line and column to an offset', () => {
     expect(harbour.slice(offsetOf(harbour, 10, 10))).toMatch(/^lights \{/)
+  })
+  it('counts CR and CRLF line endings as the kernel does', () => {
+    for (const eol of ['\r', '\r\n']) {
+      const text = harbour.replace(/\n/g, eol)
+      expect(text.slice(offsetOf(text, 10, 10))).toMatch(/^lights \{/)
+      expect(lineAt(text, offsetOf(text, 10, 10))).toBe(10)
+    }
   })
 })
 
@@ -128,5 +140,25 @@ describe('withTitle', () => {
   })
   it('keeps a new title on one line', () => {
     expect(titleOf(withTitle(harbour, 'a\nb'))).toBe('a b')
+  })
+})
+
+describe('the page reads a notebook as the kernel does', () => {
+  // Oracle: the kernel's own reader (analyzeNotebook); the page's segments come from the same spans.
+  const fenced = 'Intro words.\n\n```js\n# not a title\n```\n\n## Depot watch\n\n```check\ncheck depot: calm\n```\n'
+  it('does not take a `# heading` inside a fenced block as the title (the page)', () => {
+    expect(titleOf(fenced)).toBe('Depot watch')
+    expect(titleOf(fenced)).toBe(analyzeNotebook(fenced).title)
+    // Nor does it start a prose section there: the fence stays inside the first prose segment.
+    expect(tiles(fenced).map((s) => [s.kind, fenced.slice(s.from, s.to).split('\n')[0]])).toEqual([
+      ['prose', 'Intro words.'], ['prose', '## Depot watch'], ['check', '```check'],
+    ])
+  })
+  it('cuts formal segments exactly where the kernel reads its blocks', () => {
+    for (const text of [harbour, fenced, harbour.replace(/\n/g, '\r\n')]) {
+      const formal = segment(text).filter((s) => s.kind !== 'prose' && s.kind !== 'front')
+      const blocks = analyzeNotebook(text).blocks
+      expect(formal.map((s) => [s.kind, s.contentFrom, contentOf(text, s).replace(/\r?\n$/, '')])).toEqual(blocks.map((b) => [b.kind, b.from, b.text]))
+    }
   })
 })

@@ -10,10 +10,23 @@
 import type { Ltl } from '../../kernels/logic/ltl'
 import type { System } from '../../kernels/logic/product'
 
-/** An ultimately periodic word: letters are masks of the atoms that hold; `loop` is non-empty. */
+/**
+ * An ultimately periodic word: letters are masks of the atoms that hold (a number for atoms 0..31,
+ * a BigInt for any number of atoms); `loop` is non-empty.
+ */
 export interface LassoWord {
-  prefix: number[]
-  loop: number[]
+  prefix: (number | bigint)[]
+  loop: (number | bigint)[]
+}
+
+/** Whether atom a holds in a letter. */
+export function letterHas(letter: number | bigint, a: number): boolean {
+  return typeof letter === 'bigint' ? ((letter >> BigInt(a)) & 1n) === 1n : a < 32 && ((letter >>> a) & 1) === 1
+}
+
+/** Word w (atoms 32w..32w+31) of a letter, as a 32-bit integer. */
+export function letterWord(letter: number | bigint, w: number): number {
+  return typeof letter === 'bigint' ? Number((letter >> BigInt(32 * w)) & 0xffffffffn) | 0 : w === 0 ? letter : 0
 }
 
 /** Whether the word satisfies the formula at its first position, by the textbook semantics. */
@@ -31,7 +44,7 @@ export function evaluate(f: Ltl, w: LassoWord): boolean[] {
     switch (f.op) {
       case 'true': return all(() => true)
       case 'false': return all(() => false)
-      case 'atom': return all((i) => ((letters[i] >>> f.atom) & 1) === 1)
+      case 'atom': return all((i) => letterHas(letters[i], f.atom))
       case 'not': { const a = go(f.arg); return all((i) => !a[i]) }
       case 'next': { const a = go(f.arg); return all((i) => a[succ(i)]) }
       // w^i |= always a iff w^j |= a for every j >= i
@@ -75,7 +88,8 @@ export function wordSystem(w: LassoWord): System {
     fairnessSets: 0,
     initial: () => [0],
     successors: (s, to, fair) => { to.push(s + 1 < n ? s + 1 : w.prefix.length); fair.push(0) },
-    atoms: (s) => letters[s],
+    atoms: (s, word = 0) => letterWord(letters[s], word),
+    atomWords: 8,
   }
 }
 
@@ -114,6 +128,19 @@ export function randomLtl(r: Random, depth: number, atoms: number): Ltl {
 /** A random lasso word over atoms 0..atoms-1 with |u| < maxPrefix and 1 <= |v| <= maxLoop. */
 export function randomWord(r: Random, atoms: number, maxPrefix = 4, maxLoop = 4): LassoWord {
   const letter = () => r.int(1 << atoms)
+  return {
+    prefix: Array.from({ length: r.int(maxPrefix) }, letter),
+    loop: Array.from({ length: 1 + r.int(maxLoop) }, letter),
+  }
+}
+
+/** A random lasso word over atoms 0..atoms-1 (any number), letters as BigInt masks, each atom holding with probability `density`. */
+export function randomWideWord(r: Random, atoms: number, maxPrefix = 4, maxLoop = 4, density = 0.5): LassoWord {
+  const letter = () => {
+    let m = 0n
+    for (let a = 0; a < atoms; a++) if (r.next() < density) m |= 1n << BigInt(a)
+    return m
+  }
   return {
     prefix: Array.from({ length: r.int(maxPrefix) }, letter),
     loop: Array.from({ length: 1 + r.int(maxLoop) }, letter),
@@ -188,6 +215,6 @@ export function* lassosOf(sys: ExplicitSystem, maxLength: number): Generator<{ s
 }
 
 /** The word a run of states spells. */
-export function wordOf(sys: { atoms(s: number): number }, prefix: number[], cycle: number[]): LassoWord {
+export function wordOf(sys: { atoms(s: number, word?: number): number }, prefix: number[], cycle: number[]): LassoWord {
   return { prefix: prefix.map((s) => sys.atoms(s)), loop: cycle.map((s) => sys.atoms(s)) }
 }

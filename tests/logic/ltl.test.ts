@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest'
 import { analyzeNotebook } from '../../kernels/language/analyze'
 import type { Term } from '../../kernels/language/model'
 import {
-  always, and, atom, atomCount, equal, eventually, FALSE, fromModel, iff, implies, isEventual, isNnf, isUniversal,
+  MAX_ATOMS, always, and, atom, atomCount, equal, eventually, FALSE, fromModel, iff, implies, isEventual, isNnf, isUniversal,
   next, nnf, not, or, release, show, simplify, size, TRUE, unless, until,
 } from '../../kernels/logic/ltl'
 import { evaluate, holdsOn, Random, randomLtl, randomWord } from './lasso'
@@ -33,8 +33,10 @@ describe('printing', () => {
     expect(show(F(p), (n) => ['lit', 'seen'][n])).toBe('eventually lit')
   })
 
-  it('rejects atom numbers outside 0..31', () => {
-    expect(() => atom(32)).toThrow(RangeError)
+  it('accepts atom numbers past 31 and rejects those outside 0..MAX_ATOMS-1', () => {
+    expect(atom(32).op).toBe('atom')
+    expect(atom(MAX_ATOMS - 1).op).toBe('atom')
+    expect(() => atom(MAX_ATOMS)).toThrow(RangeError)
     expect(() => atom(-1)).toThrow(RangeError)
   })
 })

@@ -87,12 +87,13 @@ export function referenceTemporal(
   const terms: Term[] = []
   const ltl = fromModel(property.formula, (t) => terms.push(t) - 1)
   const aut = ltlToAutomaton(not(ltl))
-  let letters: number[]
+  // A row of 32-bit words per state: atom a is bit a % 32 of word a / 32 (any number of atoms).
+  let letters: number[][]
   try {
     letters = g.states.map((s) => {
-      let m = 0
+      const m = new Array<number>(Math.max(1, Math.ceil(terms.length / 32))).fill(0)
       terms.forEach((t, a) => {
-        if (term(t, s, n, procs, g.constants) !== 0) m |= 1 << a
+        if (term(t, s, n, procs, g.constants) !== 0) m[a >>> 5] |= 1 << (a & 31)
       })
       return m
     })

@@ -1,7 +1,7 @@
 // Exploration throughput and memory on heartbeat failure detectors of our own, against a baseline
 // of raw inserts into the same state store (so the ratio compares on any machine).
 import { explore } from '../kernels/explore/reach'
-import { StateStore } from '../kernels/explore/stateset'
+import { StateStore } from '../kernels/base/stateset'
 import { analyzeNotebook } from '../kernels/language/analyze'
 import { compileInstance } from '../kernels/model/instance'
 

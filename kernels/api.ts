@@ -1,6 +1,6 @@
 // The kernel's public surface: a handful of functions over plain serialisable values. The Web
 // Worker exposes exactly these through Comlink; the command line and the tests call them directly.
-// A facade only: every name is defined elsewhere (plan.ts, run.ts, language/, record/). The
+// A facade only: every name is defined elsewhere (plan.ts, run.ts, language/, record/, base/). The
 // workbench page imports the kernel through this file alone (and the generated parser).
 export type { NotebookModel } from './language/model'
 export type { CheckRow, Progress, Report } from './result'
@@ -18,6 +18,6 @@ export { notebookSpans, notebookTitle, titleOf, frontMatterSpan } from './langua
 export type { FenceSpan, FrontMatterSpan, HeadingSpan, NotebookSpans } from './language/spans'
 export { printFormula, printProperties } from './language/formula-print'
 export type { PrintedProperty } from './language/formula-print'
-export { sha256Hex } from './record/hash'
-export { canonicalJsonPretty } from './record/canonical'
+export { sha256Hex } from './base/hash'
+export { canonicalJsonPretty } from './base/canonical'
 export { buildRecord } from './record/record'

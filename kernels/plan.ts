@@ -4,8 +4,8 @@
 // so row i is computed from i and a shard walks only its own rows. A sweep of a billion settings
 // therefore costs no memory until its rows are run.
 import type { CheckModel, NotebookModel, ProtocolModel } from './language/model'
-import { canonicalJson } from './record/canonical'
-import { sha256Hex } from './record/hash'
+import { canonicalJson } from './base/canonical'
+import { sha256Hex } from './base/hash'
 import type { Progress } from './result'
 
 /** One planned row: a property of a check at one size and one constant setting. */

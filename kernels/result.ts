@@ -34,6 +34,12 @@ export interface InductionState {
   stable?: boolean
 }
 
+/**
+ * Why a row is violated, as people read it (records.md): the initial values, then the ticks. A
+ * `trace` ends in the state that breaks an invariant, a `model-error` in the step that failed, a
+ * `lasso` repeats its ticks from `loopStart` forever (a fair run), and an `induction` shows one
+ * tick from a state that satisfies the invariant to one that does not.
+ */
 export interface Counterexample {
   kind: 'trace' | 'lasso' | 'model-error' | 'induction'
   message: string
@@ -54,6 +60,10 @@ export interface Counterexample {
 /** One failed class-check rule (cutoff.md): its number and its short name, such as `no-aggregate`. */
 export interface Reason { rule: number; name: string; line: number; column: number; message: string }
 
+/**
+ * The cutoff decision of a row (cutoff.md): whether a k-process instance stands for every size,
+ * the theorem instance that says so, the class-check rules that passed, or the reasons it failed.
+ */
 export interface CutoffInfo {
   applies: boolean
   /** The cutoff instance size when it applies (1 or 2), else null. */
@@ -97,6 +107,8 @@ export interface CheckRow {
   solver?: string
   /** Symmetry-reduced state count, when the check used reduction. */
   reducedStates?: number
+  /** exploration with search 'ltl' only: the largest product (states x automaton states) searched for one assignment. */
+  productStates?: number
   /** Why the verdict is inconclusive or error, in one sentence. */
   note?: string
   /** With explicit sizes where the cutoff also applies: whether the sizes agree (false is a soundness alarm). */

@@ -7,79 +7,31 @@ import { planOf, type RowPlan, type RunOptions } from './plan'
 export { planRows } from './plan'
 import { analyzeNotebook } from './language/analyze'
 import { instantiatedText } from './language/instantiate'
+import { assignmentsOf, atomsOf, divides, invariantBody } from './language/formula'
 import type { CheckModel, Formula, NotebookModel, ProcRef, PropertyModel, ProtocolModel, Term } from './language/model'
-import { FairGraphRecorder, lassoTicks, systemOf } from './explore/fairgraph'
-import { explore, type ExploreResult } from './explore/reach'
-import { isOutOfMemory } from './explore/stateset'
-import { modelErrorCounterexample, traceCounterexample } from './explore/trace'
-import { fromModel } from './logic/ltl'
+import { FairGraphRecorder, systemOf } from './explore/fairgraph'
+import { explore, type ExploreProgress, type ExploreResult } from './explore/reach'
+import { isOutOfMemory } from './base/stateset'
+import { atomBands, lassoCounterexample, modelErrorCounterexample, traceCounterexample } from './explore/trace'
+import { fromModel, type Ltl } from './logic/ltl'
+import { statePredicate } from './logic/predicate'
 import { checkLtl, negationAutomaton, type System } from './logic/product'
 import type { Automaton } from './logic/automaton'
 import { MAX_TEMPORAL_PROCESSES } from './language/limits'
 import { ModelSetupError, PropertyFault } from './model/errors'
 import { compileInstance, type Instance } from './model/instance'
-import { compileTerm, type StateTerm } from './model/observe'
+import { compileTerm } from './model/observe'
 import { canonicalizer, orbitTotal } from './symmetry/canon'
 import { decideCutoff } from './symmetry/cutoff'
 import { reducedTemporal } from './symmetry/temporal'
 import { RULE_NAMES } from './symmetry/rules'
-import { sha256Hex } from './record/hash'
+import { errorText } from './base/error-text'
+import { sha256Hex } from './base/hash'
 import { byInduction, runInductionRow, type ProofCache } from './induction/row'
 import type { CheckRow, CutoffInfo, Report, Verdict } from './result'
 
 /** States explored before a check without `within K states` gives up as inconclusive (memory guard). */
 export const DEFAULT_LIMIT = 4_000_000
-
-/** Does the term divide (`/` or `%`) anywhere? */
-function divides(t: Term): boolean {
-  switch (t.k) {
-    case 'bin': return t.op === '/' || t.op === '%' || divides(t.left) || divides(t.right)
-    case 'min': case 'max': return divides(t.left) || divides(t.right)
-    case 'neg': return divides(t.arg)
-    default: return false
-  }
-}
-
-/** Does the formula contain a temporal operator? */
-function temporal(f: Formula): boolean {
-  switch (f.k) {
-    case 'true': case 'false': case 'atom': return false
-    case 'always': case 'eventually': case 'next': case 'until': case 'unless': return true
-    case 'not': return temporal(f.arg)
-    default: return temporal(f.left) || temporal(f.right)
-  }
-}
-
-/** The atoms of a formula, each once, in order of first appearance (exported for the benchmark). */
-export function atomsOf(f: Formula, out: Term[] = []): Term[] {
-  if (f.k === 'atom') { if (!out.includes(f.term)) out.push(f.term) }
-  else if ('arg' in f) atomsOf(f.arg, out)
-  else if ('left' in f) { atomsOf(f.left, out); atomsOf(f.right, out) }
-  return out
-}
-
-/** A state predicate from a temporal-free formula over compiled atoms. */
-function statePredicate(f: Formula, atom: (t: Term) => StateTerm): StateTerm {
-  switch (f.k) {
-    case 'true': return () => 1
-    case 'false': return () => 0
-    case 'atom': { const t = atom(f.term); return (w, o) => (t(w, o) ? 1 : 0) }
-    case 'not': { const a = statePredicate(f.arg, atom); return (w, o) => (a(w, o) ? 0 : 1) }
-    case 'and': { const a = statePredicate(f.left, atom), b = statePredicate(f.right, atom); return (w, o) => (a(w, o) && b(w, o) ? 1 : 0) }
-    case 'or': { const a = statePredicate(f.left, atom), b = statePredicate(f.right, atom); return (w, o) => (a(w, o) || b(w, o) ? 1 : 0) }
-    case 'implies': { const a = statePredicate(f.left, atom), b = statePredicate(f.right, atom); return (w, o) => (!a(w, o) || b(w, o) ? 1 : 0) }
-    case 'iff': { const a = statePredicate(f.left, atom), b = statePredicate(f.right, atom); return (w, o) => (!a(w, o) === !b(w, o) ? 1 : 0) }
-  }
-  throw new Error('a temporal operator inside a state predicate')
-}
-
-/** Every assignment of distinct processes (0-based) to k variables among n. */
-function assignments(n: number, k: number): number[][] {
-  if (k === 0) return [[]]
-  const out: number[][] = []
-  for (const rest of assignments(n, k - 1)) for (let i = 0; i < n; i++) if (!rest.includes(i)) out.push([...rest, i])
-  return out
-}
 
 function named(prop: PropertyModel, a: number[]): Record<string, number> {
   const out: Record<string, number> = {}
@@ -90,22 +42,6 @@ function named(prop: PropertyModel, a: number[]): Record<string, number> {
 /** The text of a formula node as written in the notebook. */
 function sourceOf(prop: PropertyModel, span: { from: number; to: number }): string {
   return prop.block.text.slice(span.from - prop.block.from, span.to - prop.block.from).replace(/\s+/g, ' ')
-}
-
-function atomBands(inst: Instance, data: Uint32Array, path: number[], prop: PropertyModel, terms: Term[], a: number[]) {
-  const W = inst.words
-  return terms.map((t) => {
-    const f = compileTerm(inst, t, a)
-    return { text: instantiatedText(prop, t, t.span, a), values: path.map((s) => f(data, s * W) !== 0) }
-  })
-}
-
-/**
- * The invariant fast path is exact only for `always P` with P free of temporal operators (a state
- * formula P alone is checked on the initial states through the product).
- */
-function invariantBody(f: Formula): Formula | null {
-  return f.k === 'always' && !temporal(f.arg) ? f.arg : null
 }
 
 function emptyCutoff(): CutoffInfo {
@@ -156,7 +92,7 @@ function runPlainRow(model: NotebookModel, plan: RowPlan, opts: RunOptions): Che
   try {
     cutoff = decideCutoff(protocol, prop)
   } catch (e) {
-    cutoff = { ...emptyCutoff(), reasons: [{ rule: 0, name: RULE_NAMES[0], line: prop.span.line, column: prop.span.column, message: `the class check failed internally (${(e as Error).message})` }] }
+    cutoff = { ...emptyCutoff(), reasons: [{ rule: 0, name: RULE_NAMES[0], line: prop.span.line, column: prop.span.column, message: `the class check failed internally (${errorText(e)})` }] }
   }
   const row: CheckRow = {
     row: plan.row, check: plan.check, protocol: protocol.name, property: prop.name,
@@ -191,7 +127,7 @@ function runPlainRow(model: NotebookModel, plan: RowPlan, opts: RunOptions): Che
       return finish()
     }
     row.verdict = 'error'
-    row.note = e instanceof ModelSetupError ? e.message : `the check could not be run: ${(e as Error).message}`
+    row.note = e instanceof ModelSetupError ? e.message : `the check could not be run: ${errorText(e)}`
     return finish()
   }
 }
@@ -229,138 +165,190 @@ function confirmNoModelErrorsAtTwo(row: CheckRow, protocol: ProtocolModel, const
   cutoff.statement = `${cutoff.statement}; G_2 was checked free of model errors (${r.states} states)`
 }
 
-/** Why an exploration did not finish, for the note of an `inconclusive` row. */
-function unfinished(r: ExploreResult, limit: number): string {
-  if (r.stopped) return 'the check was stopped before it finished'
-  if (r.memoryHit) return `memory ran out after ${r.states} states (the store of states needed more than was available); check a smaller instance or give a bound with \`within K states\``
-  return `the state limit of ${limit} states was reached; raise it with \`within K states\``
+/** What every route of one row works with: the row being filled in, the instance and the property's assignments. */
+interface Route {
+  row: CheckRow
+  prop: PropertyModel
+  inst: Instance
+  limit: number
+  /** The property's atoms, each once. */
+  terms: Term[]
+  /** The assignments checked: one when the cutoff is granted, every assignment otherwise. */
+  chosen: number[][]
+  opts: RunOptions
+  progress: ((p: ExploreProgress) => void) | undefined
+  t0: number
+  /** The row's cutoff decision (temporal rows above the cutoff size are searched on the quotient first). */
+  cutoff: CutoffInfo
 }
 
+/**
+ * Runs the row's instance by its route: an invariant (`always P`, P free of temporal operators)
+ * with symmetry reduction above the cutoff size, an invariant, or a temporal property.
+ */
 function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel, check: CheckModel, n: number,
   constants: number[], cutoff: CutoffInfo, opts: RunOptions): CheckRow {
   const t0 = performance.now()
   const inst = compileInstance(protocol, n, constants)
-  const limit = check.limit ?? DEFAULT_LIMIT
-  const terms = atomsOf(prop.formula)
   // One assignment stands for all when the class check grants the cutoff (symmetry); otherwise
   // every assignment of distinct processes is checked.
-  const all = assignments(n, prop.vars.length)
-  const chosen = cutoff.applies ? [all[0]] : all
-  const progress = opts.onProgress
-    ? (p: { states: number; transitions: number; statesPerSecond: number; seconds: number }) =>
-        opts.onProgress!({ check: row.check, property: prop.name, processes: n, ...p })
-    : undefined
-  const inv = invariantBody(prop.formula)
-  if (!inv && n > MAX_TEMPORAL_PROCESSES) {
-    throw new ModelSetupError(`temporal properties are checked on at most ${MAX_TEMPORAL_PROCESSES} processes (their fairness conditions must fit the temporal product's 31 marks), not ${n} (line ${prop.span.line}, column ${prop.span.column})`, prop.span)
+  const all = assignmentsOf(n, prop.vars.length)
+  const route: Route = {
+    row, prop, inst, limit: check.limit ?? DEFAULT_LIMIT, terms: atomsOf(prop.formula), chosen: cutoff.applies ? [all[0]] : all, opts,
+    progress: opts.onProgress ? (p) => opts.onProgress!({ check: row.check, property: prop.name, processes: n, ...p }) : undefined,
+    t0, cutoff,
   }
-  const predicates = inv ? chosen.map((a) => statePredicate(inv, (t) => compileTerm(inst, t, a))) : []
-  // A division in the property is evaluated in every atom on every state, whatever the connectives
-  // around it, so that a division by zero is a model error (as in protocols) however it is guarded.
-  const dividing = inv && terms.some(divides) ? chosen.map((a) => terms.map((t) => compileTerm(inst, t, a))) : null
-  let failed = -1
-  const invariant = inv ? (w: Uint32Array, o: number) => {
-    if (dividing) for (const atoms of dividing) for (const t of atoms) t(w, o)
-    for (let k = 0; k < predicates.length; k++) if (!predicates[k](w, o)) { failed = k; return false }
-    return true
-  } : undefined
+  const inv = invariantBody(prop.formula)
+  if (!inv) {
+    if (n > MAX_TEMPORAL_PROCESSES) {
+      throw new ModelSetupError(`temporal properties are checked on at most ${MAX_TEMPORAL_PROCESSES} processes (their fairness conditions must fit the temporal product's 31 marks), not ${n} (line ${prop.span.line}, column ${prop.span.column})`, prop.span)
+    }
+    return runTemporal(route)
+  }
   // Cross-checks above the cutoff size use symmetry reduction for invariants: the processes the
   // property names stay fixed and the others are interchangeable (the class check granted it, and
   // a protocol cannot tell processes apart). Temporal properties take the annotated quotient below,
   // because the fairness sets name processes and a plain quotient would mix them.
   // Permutations are enumerated per state, so only up to 5 free processes (120 permutations).
-  const reduce = inv !== null && cutoff.applies && cutoff.processes !== null && n - cutoff.processes >= 2 && n - chosen[0].length <= 5
-  if (reduce) {
-    const fixed = chosen[0]
-    const rr = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: progress, invariant, canonicalize: canonicalizer(inst, fixed), memoryBudget: opts.memoryBudget })
-    if (rr.outcome === 'ok') {
-      row.method = 'exploration'
-      row.search = 'invariant'
-      row.assignment = named(prop, fixed)
-      row.reducedStates = rr.states
-      row.states = orbitTotal(inst, rr.store.data, rr.states, fixed)
-      row.transitions = rr.transitions
-      if (!rr.complete) {
-        row.note = unfinished(rr, limit)
-        return row
-      }
-      row.verdict = 'holds'
-      row.complete = true
-      row.note = `checked with symmetry reduction over the processes the property does not name: ${rr.states} representatives stand for ${row.states} states; transitions are counted between representatives`
-      return row
-    }
-    // A violation or a model error: explore again without reduction for a real, shortest trace.
+  const reduce = cutoff.applies && cutoff.processes !== null && n - cutoff.processes >= 2 && n - route.chosen[0].length <= 5
+  // A violation or a model error under reduction is explored again without it, for a real, shortest trace.
+  if (reduce && runReducedInvariant(route, inv)) return row
+  return runInvariant(route, inv)
+}
+
+/** The invariant's test on a state, and which assignment failed last (`failed`, -1 while none). */
+function invariantTest(route: Route, inv: Formula): { test: (w: Uint32Array, o: number) => boolean; failed: () => number } {
+  const { inst, terms, chosen } = route
+  const predicates = chosen.map((a) => statePredicate(inv, (t) => compileTerm(inst, t, a)))
+  // A division in the property is evaluated in every atom on every state, whatever the connectives
+  // around it, so that a division by zero is a model error (as in protocols) however it is guarded.
+  const dividing = terms.some(divides) ? chosen.map((a) => terms.map((t) => compileTerm(inst, t, a))) : null
+  let failed = -1
+  const test = (w: Uint32Array, o: number) => {
+    if (dividing) for (const atoms of dividing) for (const t of atoms) t(w, o)
+    for (let k = 0; k < predicates.length; k++) if (!predicates[k](w, o)) { failed = k; return false }
+    return true
   }
-  // Temporal cross-checks above the cutoff size: the annotated quotient (symmetry/temporal.ts),
-  // exact under our fairness; it decides the verdict, and a violation is searched again unreduced
-  // for a real lasso, as above.
-  let reducedViolated = false
-  // One translation of the negated property for every search of this row (reduced and not).
-  const ltl = fromModel(prop.formula, (t) => terms.indexOf(t))
-  let negated: ReturnType<typeof negationAutomaton> | undefined
-  const translate = () => negated ??= negationAutomaton(ltl, { shouldStop: opts.shouldStop, translation: { onProgress: () => progress?.({ states: 0, transitions: 0, statesPerSecond: 0, seconds: (performance.now() - t0) / 1000 }), budget: opts.translationBudget } })
-  if (!inv && cutoff.applies && cutoff.processes !== null && n - cutoff.processes >= 2 && 'states' in translate()) {
-    const a = chosen[0]
-    const fixed = [...new Set([...a, ...literalProcesses(terms)])]
-    const rt = reducedTemporal(inst, fixed, terms.map((t) => compileTerm(inst, t, a)), ltl,
-      { limit, shouldStop: opts.shouldStop, onProgress: progress, recomputeEdges: opts.recomputeEdges, automaton: translate() as Automaton })
-    if (rt.kind === 'incomplete' || rt.kind === 'decided' && rt.holds) {
-      Object.assign(row, { method: 'exploration', search: 'ltl', assignment: named(prop, a), reducedStates: rt.representatives, transitions: rt.transitions })
-      if (rt.kind === 'incomplete') {
-        row.note = rt.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`within K states\``
-        return row
-      }
-      Object.assign(row, { verdict: 'holds', complete: true, states: rt.states, productStates: rt.productNodes })
-      row.note = `checked with symmetry reduction over the processes the property does not name (the annotated quotient, fairness tracked through the permutations): ${rt.representatives} representatives stand for ${rt.states} states; transitions are counted between representatives`
-      return row
-    }
-    if (rt.kind === 'decided') {
-      reducedViolated = true
-      row.note = 'the symmetry-reduced search found a fair run that violates the property; the counterexample is from the search without reduction'
-    } else row.note = `explored without symmetry reduction: ${rt.reason}`
+  return { test, failed: () => failed }
+}
+
+/** Why an exploration did not finish, for the note of an `inconclusive` row. */
+function incompleteNote(r: ExploreResult, limit: number): string {
+  if (r.stopped) return 'the check was stopped before it finished'
+  if (r.memoryHit) return `memory ran out after ${r.states} states (the store of states needed more than was available); check a smaller instance or give a bound with \`within K states\``
+  return `the state limit of ${limit} states was reached; raise it with \`within K states\``
+}
+
+/**
+ * The invariant under symmetry reduction (`symmetry/canon.ts`), the processes the property names
+ * fixed. True when the row is decided; false on a violation or a model error, which the caller
+ * explores again unreduced.
+ */
+function runReducedInvariant(route: Route, inv: Formula): boolean {
+  const { row, prop, inst, limit, opts } = route
+  const fixed = route.chosen[0]
+  const rr = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: route.progress, invariant: invariantTest(route, inv).test, canonicalize: canonicalizer(inst, fixed), memoryBudget: opts.memoryBudget })
+  if (rr.outcome !== 'ok') return false
+  row.method = 'exploration'
+  row.search = 'invariant'
+  row.assignment = named(prop, fixed)
+  row.reducedStates = rr.states
+  row.states = orbitTotal(inst, rr.store.data, rr.states, fixed)
+  row.transitions = rr.transitions
+  if (!rr.complete) {
+    row.note = incompleteNote(rr, limit)
+    return true
   }
-  // The temporal route records the fair graph in the same pass (unless told to save memory).
-  const recorder = inv ? undefined : new FairGraphRecorder(inst, opts.recomputeEdges ? 0 : undefined)
-  const r = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: progress, invariant, edges: recorder, memoryBudget: opts.memoryBudget })
+  row.verdict = 'holds'
+  row.complete = true
+  row.note = `checked with symmetry reduction over the processes the property does not name: ${rr.states} representatives stand for ${row.states} states; transitions are counted between representatives`
+  return true
+}
+
+/**
+ * Explores the row's instance once, unreduced, and fills in what every route reports: counts,
+ * method and route, a model error's counterexample, an unfinished search's note. Returns the
+ * result, and whether the row is already decided by it.
+ */
+function exploreRow(route: Route, search: 'invariant' | 'ltl', invariant?: (w: Uint32Array, o: number) => boolean, edges?: FairGraphRecorder): { r: ExploreResult; decided: boolean } {
+  const { row, prop, inst, limit, opts } = route
+  const r = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: route.progress, invariant, edges, memoryBudget: opts.memoryBudget })
   row.states = r.states
   row.transitions = r.transitions
   row.method = 'exploration'
-  row.search = inv ? 'invariant' : 'ltl'
-  row.assignment = named(prop, chosen[0] ?? [])
-  const data = r.store.data
+  row.search = search
+  row.assignment = named(prop, route.chosen[0] ?? [])
   if (r.outcome === 'model-error' && r.error && r.trace) {
     row.verdict = 'violated'
     row.complete = false
     row.counterexample = modelErrorCounterexample(inst, r.store, r.trace, r.error)
-    return row
+    return { r, decided: true }
   }
+  return { r, decided: false }
+}
+
+/** The invariant route: one exploration checks P on every reachable state, for every chosen assignment. */
+function runInvariant(route: Route, inv: Formula): CheckRow {
+  const { row, prop, inst, limit, terms, chosen } = route
+  const invariant = invariantTest(route, inv)
+  const { r, decided } = exploreRow(route, 'invariant', invariant.test)
+  if (decided) return row
   if (r.outcome === 'violation' && r.trace) {
     const path = r.trace
-    const a = chosen[failed] ?? chosen[0]
+    const a = chosen[invariant.failed()] ?? chosen[0]
     const ticks = path.length - 1
     row.verdict = 'violated'
     row.complete = false
     row.assignment = named(prop, a)
     row.counterexample = {
       ...traceCounterexample(inst, r.store, path,
-        `\`${prop.name}\` fails after ${ticks} tick${ticks === 1 ? '' : 's'}: the state reached breaks \`${sourceOf(prop, inv!.span)}\``),
-      atoms: atomBands(inst, data, path, prop, terms, a),
+        `\`${prop.name}\` fails after ${ticks} tick${ticks === 1 ? '' : 's'}: the state reached breaks \`${sourceOf(prop, inv.span)}\``),
+      atoms: atomBands(inst, r.store, path, prop, terms, a),
     }
     return row
   }
   if (!r.complete) {
-    row.note = unfinished(r, limit)
+    row.note = incompleteNote(r, limit)
     return row
   }
-  if (inv) {
-    row.verdict = 'holds'
-    row.complete = true
+  row.verdict = 'holds'
+  row.complete = true
+  return row
+}
+
+/**
+ * The temporal route: one exploration records the fair graph (`explore/fairgraph.ts`), then per
+ * assignment the product with the automaton of the negated property is searched for a fair
+ * accepting lasso (`logic/product.ts`).
+ */
+function runTemporal(route: Route): CheckRow {
+  const { row, prop, inst, limit, terms, opts, cutoff } = route
+  // One translation of the negated property for every search of this row (reduced and not).
+  const ltl = fromModel(prop.formula, (t) => terms.indexOf(t))
+  let negated: ReturnType<typeof negationAutomaton> | undefined
+  const translation = (onProgress?: () => void) => negated ??= negationAutomaton(ltl, { shouldStop: opts.shouldStop, translation: { onProgress, budget: opts.translationBudget } })
+  // Above the cutoff size: the annotated quotient (symmetry/temporal.ts), exact under our
+  // fairness; it decides the verdict, and a violation is searched again unreduced for a real lasso.
+  let reducedViolated = false
+  if (cutoff.applies && cutoff.processes !== null && inst.n - cutoff.processes >= 2) {
+    const aut = translation(() => route.progress?.({ states: 0, transitions: 0, statesPerSecond: 0, seconds: (performance.now() - route.t0) / 1000 }))
+    if ('states' in aut) {
+      const decided = runReducedTemporal(route, ltl, aut)
+      if (decided === true) return row
+      reducedViolated = decided === 'violated'
+    }
+  }
+  // The fair graph is recorded in the same pass (unless told to save memory).
+  const recorder = new FairGraphRecorder(inst, opts.recomputeEdges ? 0 : undefined)
+  const { r, decided } = exploreRow(route, 'ltl', undefined, recorder)
+  if (decided) return row
+  if (!r.complete) {
+    row.note = incompleteNote(r, limit)
     return row
   }
-  // Temporal property: the product with the automaton of the negation, per assignment.
   let productNodes = 0
-  const graph = recorder!.graph(r.states)
-  for (const a of chosen) {
+  const graph = recorder.graph(r.states)
+  for (const a of route.chosen) {
     const compiled = terms.map((t) => compileTerm(inst, t, a))
     let sys: System
     try {
@@ -378,11 +366,11 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
     }
     let stoppedByLimit = false
     const report = () => {
-      const seconds = (performance.now() - t0) / 1000
-      progress?.({ states: r.states, transitions: r.transitions, statesPerSecond: seconds > 0 ? r.states / seconds : 0, seconds })
+      const seconds = (performance.now() - route.t0) / 1000
+      route.progress?.({ states: r.states, transitions: r.transitions, statesPerSecond: seconds > 0 ? r.states / seconds : 0, seconds })
     }
     // One translation for every assignment (the formula over atom numbers is the same).
-    negated ??= negationAutomaton(ltl, { shouldStop: opts.shouldStop, translation: { onProgress: report, budget: opts.translationBudget } })
+    negated = translation(report)
     if (!('states' in negated)) {
       // The translation gave up (stopped, or over budget): inconclusive, never a verdict.
       row.note = negated.stopped ? 'the check was stopped before the temporal search finished'
@@ -408,27 +396,54 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
       return row
     }
     if (v.holds === false) {
-      const path = [...v.prefix, ...v.cycle, v.cycle[0]]
+      const loops = v.prefix.length
       row.verdict = 'violated'
       row.complete = true
       row.assignment = named(prop, a)
       row.counterexample = {
-        kind: 'lasso',
-        message: `a fair run violates \`${prop.name}\`: after ${v.prefix.length} tick${v.prefix.length === 1 ? '' : 's'} it repeats a loop of ${v.cycle.length} forever`,
-        initial: inst.describeInitial(data, path[0] * inst.words),
-        ticks: lassoTicks(inst, r.store, path, v.prefix.length, v.cycleFairness),
-        loopStart: v.prefix.length,
-        atoms: atomBands(inst, data, path, prop, terms, a),
+        ...lassoCounterexample(inst, r.store, v.prefix, v.cycle, v.cycleFairness,
+          `a fair run violates \`${prop.name}\`: after ${loops} tick${loops === 1 ? '' : 's'} it repeats a loop of ${v.cycle.length} forever`),
+        atoms: atomBands(inst, r.store, [...v.prefix, ...v.cycle, v.cycle[0]], prop, terms, a),
       }
-      ;(row as CheckRow & { productStates?: number }).productStates = productNodes
+      row.productStates = productNodes
       return row
     }
   }
   row.verdict = 'holds'
   row.complete = true
-  ;(row as CheckRow & { productStates?: number }).productStates = productNodes
+  row.productStates = productNodes
   if (reducedViolated) row.note = 'the symmetry-reduced search found a fair violating run that the search without reduction does not; the unreduced verdict stands; please report this notebook'
   return row
+}
+
+/**
+ * The temporal property on the annotated quotient (`symmetry/temporal.ts`): true when the row is
+ * decided (holds, or unfinished); 'violated' when the quotient found a fair violating run (the
+ * caller searches unreduced for the real lasso); false when reduction cannot decide this row
+ * (the row's note says why, and the caller searches unreduced).
+ */
+function runReducedTemporal(route: Route, ltl: Ltl, automaton: Automaton): boolean | 'violated' {
+  const { row, prop, inst, limit, terms, opts } = route
+  const a = route.chosen[0]
+  const fixed = [...new Set([...a, ...literalProcesses(terms)])]
+  const rt = reducedTemporal(inst, fixed, terms.map((t) => compileTerm(inst, t, a)), ltl,
+    { limit, shouldStop: opts.shouldStop, onProgress: route.progress, recomputeEdges: opts.recomputeEdges, automaton })
+  if (rt.kind === 'fallback') {
+    row.note = `explored without symmetry reduction: ${rt.reason}`
+    return false
+  }
+  if (rt.kind === 'decided' && !rt.holds) {
+    row.note = 'the symmetry-reduced search found a fair run that violates the property; the counterexample is from the search without reduction'
+    return 'violated'
+  }
+  Object.assign(row, { method: 'exploration', search: 'ltl', assignment: named(prop, a), reducedStates: rt.representatives, transitions: rt.transitions })
+  if (rt.kind === 'incomplete') {
+    row.note = rt.stopped ? 'the check was stopped before it finished' : `the state limit of ${limit} states was reached; raise it with \`within K states\``
+    return true
+  }
+  Object.assign(row, { verdict: 'holds', complete: true, states: rt.states, productStates: rt.productNodes })
+  row.note = `checked with symmetry reduction over the processes the property does not name (the annotated quotient, fairness tracked through the permutations): ${rt.representatives} representatives stand for ${rt.states} states; transitions are counted between representatives`
+  return true
 }
 
 /** The 0-based processes a property names by number (`#n`): reduction keeps them fixed too. */

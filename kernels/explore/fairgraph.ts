@@ -5,11 +5,11 @@
 // recomputed from the successor function when the product asks for it: slower, but the memory is
 // the store's alone.
 import type { System } from '../logic/product'
-import type { Instance } from '../model/instance'
+import { channelIndex, type Instance } from '../model/instance'
 import { channelEmpty, isCrashed, isStable, type StateTerm } from '../model/observe'
-import { ChunkedInt32 } from './chunked'
+import { ChunkedInt32 } from '../base/chunked'
 import type { EdgeRecorder, ExploreResult } from './reach'
-import type { StateStore } from './stateset'
+import type { StateStore } from '../base/stateset'
 
 /**
  * Fairness sets (semantics.md) as transition marks: bit i, process i steps or is down (crashed in
@@ -37,7 +37,7 @@ export function fairMarks(inst: Instance): FairMarks {
   for (let j = 0; j < n; j++) {
     for (let i = 0; i < n; i++) {
       // Channel index of j->i as the instance numbers it (see Instance.channelCount).
-      if (i !== j) channels.push({ i, bit: n + channels.length, index: j * (n - 1) + (i < j ? i : i - 1), test: channelEmpty(inst, j, i) })
+      if (i !== j) channels.push({ i, bit: n + channels.length, index: channelIndex(n, j, i), test: channelEmpty(inst, j, i) })
     }
   }
   // The mark of the channel with each index, so an edge reads only the channels that delivered.

@@ -9,11 +9,11 @@
 import type { QuotientSystem } from '../logic/quotient'
 import type { Instance } from '../model/instance'
 import type { StateTerm } from '../model/observe'
-import type { Symmetries } from '../symmetry/group'
-import { ChunkedInt32 } from './chunked'
+import type { Symmetries } from '../logic/quotient'
+import { ChunkedInt32 } from '../base/chunked'
 import { fairMarks, type FairMarks } from './fairgraph'
 import type { EdgeRecorder, ExploreResult } from './reach'
-import { StateStore } from './stateset'
+import { StateStore } from '../base/stateset'
 
 /** Distinct (target, perm, marks) triples of one row; slots invalidated by a stamp. */
 class TripleSet {

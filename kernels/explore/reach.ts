@@ -9,7 +9,7 @@ import { canonicalState } from '../model/decode'
 import { PropertyFault, type ModelError } from '../model/errors'
 import type { ExpansionBound } from '../model/expansion'
 import type { Instance } from '../model/instance'
-import { isOutOfMemory, StateStore } from './stateset'
+import { isOutOfMemory, StateStore } from '../base/stateset'
 
 /** Progress of a running exploration (reported at most every 100 ms). */
 export interface ExploreProgress {

@@ -11,7 +11,7 @@
 // none holds, exactly as the explicit successor function (model/tick.ts) drops a faulting branch.
 import type { Arith, Bool } from 'z3-solver'
 import type { Expr, ProtocolModel, Span, Stmt, Target } from '../language/model'
-import type { Layout } from '../model/layout'
+import { channelIndex, type Layout } from '../model/layout'
 import type { StateVars } from './space'
 import type { Z3 } from './solver'
 
@@ -104,7 +104,7 @@ export function encodeTick(z: Z3, protocol: ProtocolModel, layout: Layout, const
     const run: Run = { p, loc, bind: new Array(protocol.binders.length).fill(-1), fields: [], sent, errors, assume: parts, fresh }
     for (let q = 0; q < n; q++) {
       if (q === p) continue
-      const c = q * (n - 1) + (p < q ? p : p - 1)
+      const c = channelIndex(n, q, p)
       for (let v = 0; v < V; v++) {
         const kind = layout.valueKind[v]
         const hs = protocol.handlers.filter((h) => h.message === kind)

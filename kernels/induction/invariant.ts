@@ -4,11 +4,13 @@
 // its conjunct false (it must hold on every reachable state, and the explorer reports it as an
 // error there), which keeps a proof sound.
 import type { Arith, Bool } from 'z3-solver'
+import { assignmentsOf, isTemporal } from '../language/formula'
 import type { Formula, ProcRef, PropertyModel, Span, Term } from '../language/model'
 import { ModelSetupError } from '../model/errors'
 import type { Instance } from '../model/instance'
 import { compileTerm } from '../model/observe'
-import type { Layout } from '../model/layout'
+import { statePredicate } from '../logic/predicate'
+import { channelIndex, type Layout } from '../model/layout'
 import { toBool, toInt, truncDiv, truncMod } from './encode'
 import type { StateVars } from './space'
 import type { Z3 } from './solver'
@@ -25,27 +27,10 @@ export interface Conjunct {
 /** Why a property cannot be proved by induction, with where; null when it can. */
 export function inductionFormError(prop: PropertyModel): { message: string; span: Span } | null {
   const f = prop.formula
-  if (f.k !== 'always' || temporal(f.arg)) {
+  if (f.k !== 'always' || isTemporal(f.arg)) {
     return { message: `\`${prop.name}\` cannot be proved by induction: it must have the form \`always S\` with S free of temporal operators; check it without \`by induction\``, span: f.span }
   }
   return null
-}
-
-function temporal(f: Formula): boolean {
-  switch (f.k) {
-    case 'true': case 'false': case 'atom': return false
-    case 'always': case 'eventually': case 'next': case 'until': case 'unless': return true
-    case 'not': return temporal(f.arg)
-    default: return temporal(f.left) || temporal(f.right)
-  }
-}
-
-/** Every assignment of distinct processes (0-based) to k variables among n, in the runner's order. */
-export function assignmentsOf(n: number, k: number): number[][] {
-  if (k === 0) return [[]]
-  const out: number[][] = []
-  for (const rest of assignmentsOf(n, k - 1)) for (let i = 0; i < n; i++) if (!rest.includes(i)) out.push([...rest, i])
-  return out
 }
 
 /** The conjuncts of I at size n, properties in order, then assignments. */
@@ -112,7 +97,7 @@ function term(z: Z3, layout: Layout, constants: number[], t: Term, a: number[], 
       const from = proc(layout.n, t.from, a)
       const to = proc(layout.n, t.to, a)
       if (from === to) return z.Bool.val(false)
-      const c = from * (layout.n - 1) + (to < from ? to : to - 1)
+      const c = channelIndex(layout.n, from, to)
       const m = layout.messages[t.message]
       const any: B[] = []
       for (let v = m.base; v < m.base + m.count; v++) any.push(...s.chan[c][v])
@@ -151,23 +136,7 @@ function term(z: Z3, layout: Layout, constants: number[], t: Term, a: number[], 
 export function explicitConjunct(inst: Instance, prop: PropertyModel, a: number[]): (w: Uint32Array, off: number) => boolean {
   const f = prop.formula
   if (f.k !== 'always') throw new Error('explicitConjunct: not an invariant')
-  const pred = (g: Formula): ((w: Uint32Array, o: number) => boolean) => {
-    switch (g.k) {
-      case 'true': return () => true
-      case 'false': return () => false
-      case 'atom': {
-        const t = compileTerm(inst, g.term, a)
-        return (w, o) => t(w, o) !== 0
-      }
-      case 'not': { const x = pred(g.arg); return (w, o) => !x(w, o) }
-      case 'and': { const x = pred(g.left), y = pred(g.right); return (w, o) => x(w, o) && y(w, o) }
-      case 'or': { const x = pred(g.left), y = pred(g.right); return (w, o) => x(w, o) || y(w, o) }
-      case 'implies': { const x = pred(g.left), y = pred(g.right); return (w, o) => !x(w, o) || y(w, o) }
-      case 'iff': { const x = pred(g.left), y = pred(g.right); return (w, o) => x(w, o) === y(w, o) }
-    }
-    throw new Error('a temporal operator inside an invariant')
-  }
-  const body = pred(f.arg)
+  const body = statePredicate(f.arg, (t) => compileTerm(inst, t, a))
   // A division by zero anywhere makes the conjunct false, as in the encoding.
-  return (w, o) => { try { return body(w, o) } catch { return false } }
+  return (w, o) => { try { return body(w, o) !== 0 } catch { return false } }
 }

@@ -3,7 +3,8 @@
 // induction.md says. When the step fails, the explorer (within the row's state bound) tells
 // whether the counterexample state is reachable: a reachable one makes the row `violated` with
 // the real shortest trace, an unreachable one asks for a strengthening.
-import type { RowPlan, RunOptions } from '../api'
+import { errorText } from '../base/error-text'
+import type { RowPlan, RunOptions } from '../plan'
 import type { CheckModel, NotebookModel, PropertyModel } from '../language/model'
 import { explore } from '../explore/reach'
 import { modelErrorCounterexample, traceCounterexample } from '../explore/trace'
@@ -101,7 +102,7 @@ export async function runInductionRow(model: NotebookModel, plan: RowPlan, opts:
     verdictOf(row, result, check, plan.property, cutoffs, opts)
   } catch (e) {
     row.verdict = 'error'
-    row.note = e instanceof ModelSetupError ? e.message : `the check could not be run: ${(e as Error).message}`
+    row.note = e instanceof ModelSetupError ? e.message : `the check could not be run: ${errorText(e)}`
   }
   return finish()
 }

@@ -1,6 +1,7 @@
 // The front end in one call: notebook text to a `NotebookModel` with every diagnostic. Never
 // throws, whatever the input: an internal failure becomes a diagnostic, not a stack trace.
-import { BlockContext, children, droppedDiagnostics } from './context'
+import { errorText } from '../base/error-text'
+import { BlockContext, children, droppedDiagnostics, hasError } from './context'
 import { CheckScope, resolveCheck } from './check'
 import type { BlockRef, CheckModel, Diagnostic, NotebookModel, PropertyDecl, ProtocolModel } from './model'
 import { readNotebook } from './notebook'
@@ -8,7 +9,7 @@ import { MAX_DIAGNOSTICS, MAX_NESTING, MAX_NOTEBOOK_CHARS } from './limits'
 import { LineMap } from './positions'
 import { titleOf } from './spans'
 import { declareProperty } from './property'
-import { hasError, resolveProtocol } from './protocol'
+import { resolveProtocol } from './protocol'
 import { budgetSuggestions } from './suggest'
 import { parseBlock, reportSyntaxErrors, tooDeep } from './syntax'
 
@@ -23,7 +24,7 @@ export function analyzeNotebook(text: string): NotebookModel {
       title: null, blocks: [], protocols: [], properties: [], checks: [],
       diagnostics: [{
         line: 1, column: 1, endLine: 1, endColumn: 1, from: 0, to: 0, severity: 'error',
-        message: `the notebook could not be read (${e instanceof Error ? e.message : String(e)}); please report this notebook to the twofold developers`,
+        message: `the notebook could not be read (${errorText(e)}); please report this notebook to the twofold developers`,
       }],
     }
   }

@@ -7,6 +7,7 @@ import type { BlockContext } from './context'
 import { protocolProblems, termProblems } from './bounds'
 import { isModelValue, MAX_PROCESSES, MAX_SWEEP_ROWS, MAX_SWEEP_VALUES, MAX_TEMPORAL_PROCESSES } from './limits'
 import type { CheckModel, Formula, PropertyModel, ProtocolModel, Span, SweepItem, Term } from './model'
+import { atomsOf, isInvariant } from './formula'
 import { DeclaredProperty, resolveProperty } from './property'
 import { didYouMean, namesOf } from './suggest'
 
@@ -118,27 +119,6 @@ function sizesOf(clause: SyntaxNode, ctx: BlockContext, properties: PropertyMode
   return sizes
 }
 
-function hasTemporal(f: Formula): boolean {
-  switch (f.k) {
-    case 'atom': case 'true': case 'false': return false
-    case 'always': case 'eventually': case 'next': case 'until': case 'unless': return true
-    case 'not': return hasTemporal(f.arg)
-    default: return hasTemporal(f.left) || hasTemporal(f.right)
-  }
-}
-
-/** `always P` with P free of temporal operators: checked as an invariant, without fairness marks. */
-function isInvariant(p: PropertyModel): boolean {
-  return p.formula.k === 'always' && !hasTemporal(p.formula.arg)
-}
-
-function termsOf(f: Formula, out: Term[] = []): Term[] {
-  if (f.k === 'atom') out.push(f.term)
-  else if ('arg' in f) termsOf(f.arg, out)
-  else if ('left' in f) { termsOf(f.left, out); termsOf(f.right, out) }
-  return out
-}
-
 /** The settings a sweep gives, one constant vector each (the same order as the runner's plan). */
 function sweepSettings(protocol: ProtocolModel, sweep: SweepItem[]): number[][] {
   let out: number[][] = [protocol.consts.map((c) => c.value)]
@@ -156,12 +136,12 @@ function checkSettings(protocol: ProtocolModel, properties: PropertyModel[], swe
     const defaults = protocol.consts.map((c) => c.value)
     let ok = true
     for (const p of properties) {
-      for (const problem of termProblems(protocol, termsOf(p.formula), defaults)) { ctx.error(problem.span, problem.message); ok = false }
+      for (const problem of termProblems(protocol, atomsOf(p.formula), defaults)) { ctx.error(problem.span, problem.message); ok = false }
     }
     return ok
   }
   for (const setting of sweepSettings(protocol, sweep)) {
-    const problem = protocolProblems(protocol, setting)[0] ?? properties.map((p) => termProblems(protocol, termsOf(p.formula), setting)[0]).find((x) => x)
+    const problem = protocolProblems(protocol, setting)[0] ?? properties.map((p) => termProblems(protocol, atomsOf(p.formula), setting)[0]).find((x) => x)
     if (!problem) continue
     const named = sweep.map((s) => `${protocol.consts[s.constIndex].name} = ${setting[s.constIndex]}`).join(', ')
     ctx.error(at, `with ${named}, ${problem.message} (line ${problem.span.line}, column ${problem.span.column}); narrow the sweep`)

@@ -1,4 +1,5 @@
-// The state a block's resolver carries: where the block sits, and the diagnostics found so far.
+// The state a block's resolver carries (where the block sits, and the diagnostics found so far),
+// and the syntax-tree helpers every resolver (protocol, property, check) reads nodes with.
 import type { SyntaxNode } from '@lezer/common'
 import type { BlockRef, Diagnostic, Span } from './model'
 import { MAX_DIAGNOSTICS } from './limits'
@@ -62,3 +63,33 @@ const overflow = new WeakMap<Diagnostic[], { count: number; first: Span }>()
 export function droppedDiagnostics(list: Diagnostic[]): { count: number; first: Span } | null {
   return overflow.get(list) ?? null
 }
+/** Node names that are expressions in the grammar. */
+export const EXPRESSION_NODES = new Set([
+  'Number', 'Boolean', 'VarRef', 'IndexRef', 'ProcNumber', 'Member', 'ParenExpression', 'CallExpression',
+  'Pending', 'Negation', 'PrefixExpression', 'BinaryExpression', 'IfExpression', 'Aggregate', 'Forall',
+  'BoundNegation', 'BoundArithmetic',
+])
+
+/** True when a node or anything inside it is a syntax error. */
+export function hasError(node: SyntaxNode): boolean {
+  let found = false
+  node.toTree().iterate({ enter: (n) => { if (n.type.isError) found = true; return !found } })
+  return found
+}
+
+/** The expression children of a node, in order. */
+export function expressionChildren(node: SyntaxNode): SyntaxNode[] {
+  return children(node).filter((c) => EXPRESSION_NODES.has(c.name))
+}
+
+/** The operator of a binary expression: the source text between its operands. */
+export function binaryOperator(node: SyntaxNode, ctx: BlockContext): string {
+  const [l, r] = expressionChildren(node)
+  return ctx.block.text.slice(l.to, r.from).replace(/\/\/[^\r\n]*/g, '').trim()
+}
+
+/** The arithmetic operators of a binary expression. */
+export const ARITH = new Set(['+', '-', '*', '/', '%'])
+
+/** The comparison operators of a binary expression (typed by `comparisonProblem`, sorts.ts). */
+export const COMPARE = new Set(['=', '!=', '<', '<=', '>', '>='])

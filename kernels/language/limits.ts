@@ -72,3 +72,10 @@ export const MAX_DIAGNOSTICS = 1000
 export function isModelValue(v: number): boolean {
   return Number.isInteger(v) && v >= MIN_VALUE && v <= MAX_VALUE
 }
+
+/**
+ * The largest number of distinct atoms a formula may use. Nothing in the translation depends on
+ * it; it bounds the memory of the product, which keeps a row of ceil(atoms / 32) words per
+ * reachable state (8 words, 32 bytes, at the limit).
+ */
+export const MAX_ATOMS = 256

@@ -3,12 +3,11 @@
 // atoms are resolved per check; an atom that a protocol cannot give meaning to is reported at the
 // atom, naming the check.
 import type { SyntaxNode } from '@lezer/common'
-import { BlockContext, children } from './context'
+import { ARITH, BlockContext, binaryOperator, children, COMPARE, expressionChildren } from './context'
 import type { Formula, ProcRef, PropertyModel, ProtocolModel, Span, Term } from './model'
-import { binaryOperator, expressionChildren } from './protocol'
-import { BOOL, indexByName, INT, labelIndex, sameSort, Sort, sortName, sortOf } from './sorts'
+import { BOOL, comparisonProblem, indexByName, INT, integerLiteral, labelIndex, sameSort, Sort, sortName, sortOf } from './sorts'
+import { MAX_ATOMS } from './limits'
 import { didYouMean, namesOf } from './suggest'
-import { MAX_ATOMS } from '../logic/ltl'
 
 /** A declared property with the syntax it was written in, resolved later per check. */
 export interface DeclaredProperty {
@@ -76,8 +75,6 @@ export function resolveProperty(decl: DeclaredProperty, protocol: ProtocolModel,
   }
 }
 
-const COMPARE = new Set(['=', '!=', '<', '<=', '>', '>='])
-const ARITH = new Set(['+', '-', '*', '/', '%'])
 const FORMULA_BINARY = new Set(['and', 'or', 'implies', 'iff', 'until', 'unless'])
 
 class PropertyResolver {
@@ -199,7 +196,11 @@ class PropertyResolver {
     const span = ctx.span(node)
     const text = ctx.text(node)
     switch (node.name) {
-      case 'Number': return { t: { k: 'lit', value: Number(text), span }, sort: INT }
+      case 'Number': {
+        const read = integerLiteral(text)
+        if ('problem' in read) return this.error(node, read.problem)
+        return { t: { k: 'lit', value: read.value, span }, sort: INT }
+      }
       case 'Boolean': return { t: { k: 'lit', value: text === 'true' ? 1 : 0, span }, sort: BOOL }
       case 'ParenExpression': return this.term(expressionChildren(node)[0], expected)
       case 'Negation': {
@@ -278,10 +279,8 @@ class PropertyResolver {
           const l = this.term(ln)
           const r = this.term(rn, l?.sort)
           if (!l || !r) return null
-          if (op !== '=' && op !== '!=' && (l.sort.k !== 'int' || r.sort.k !== 'int')) {
-            return this.error(node, `\`${op}\` compares integers, but this compares ${sortName(l.sort)} with ${sortName(r.sort)}; use \`=\` or \`!=\``)
-          }
-          if (!sameSort(l.sort, r.sort)) return this.error(node, `this compares ${sortName(l.sort)} with ${sortName(r.sort)}; compare values of the same type`)
+          const problem = comparisonProblem(op, l.sort, r.sort)
+          if (problem) return this.error(node, problem)
           return { t: { k: 'bin', op: op as '=', left: l.t, right: r.t, span }, sort: BOOL }
         }
         return this.error(node, `\`${op}\` joins conditions and cannot stand inside a comparison; add parentheses around the comparisons`)

@@ -3,40 +3,15 @@
 // that independent mistakes are all reported, and a declaration that has a syntax error is
 // skipped (its syntax error says enough).
 import type { SyntaxNode } from '@lezer/common'
-import { BlockContext, children } from './context'
+import { ARITH, BlockContext, binaryOperator, children, COMPARE, expressionChildren, hasError } from './context'
 import type {
   Binder, BinOp, ConstDecl, Expr, FieldDecl, Handler, MessageDecl, ProtocolModel, Span, Stmt, Target,
   Timing, Type, VarDecl,
 } from './model'
 import { protocolProblems } from './bounds'
-import { BOOL, ConstantError, evalConstant, indexByName, INT, internLabels, labelIndex, labelWork, sameSort, Sort, sortName, sortOf } from './sorts'
+import { BOOL, comparisonProblem, ConstantError, evalConstant, indexByName, INT, integerLiteral, internLabels, labelIndex, labelWork, sameSort, Sort, sortName, sortOf } from './sorts'
 import { MAX_ENUM_LABELS } from './limits'
 import { didYouMean, namesOf } from './suggest'
-
-/** Node names that are expressions in the grammar. */
-export const EXPRESSION_NODES = new Set([
-  'Number', 'Boolean', 'VarRef', 'IndexRef', 'ProcNumber', 'Member', 'ParenExpression', 'CallExpression',
-  'Pending', 'Negation', 'PrefixExpression', 'BinaryExpression', 'IfExpression', 'Aggregate', 'Forall',
-  'BoundNegation', 'BoundArithmetic',
-])
-
-/** True when a node or anything inside it is a syntax error. */
-export function hasError(node: SyntaxNode): boolean {
-  let found = false
-  node.toTree().iterate({ enter: (n) => { if (n.type.isError) found = true; return !found } })
-  return found
-}
-
-/** The expression children of a node, in order. */
-export function expressionChildren(node: SyntaxNode): SyntaxNode[] {
-  return children(node).filter((c) => EXPRESSION_NODES.has(c.name))
-}
-
-/** The operator of a binary expression: the source text between its operands. */
-export function binaryOperator(node: SyntaxNode, ctx: BlockContext): string {
-  const [l, r] = expressionChildren(node)
-  return ctx.block.text.slice(l.to, r.from).replace(/\/\/[^\r\n]*/g, '').trim()
-}
 
 interface Typed { e: Expr; sort: Sort }
 
@@ -49,8 +24,6 @@ interface Scope {
   what?: string
 }
 
-const ARITH = new Set(['+', '-', '*', '/', '%'])
-const COMPARE = new Set(['=', '!=', '<', '<=', '>', '>='])
 const LOGIC = new Set(['and', 'or', 'implies', 'iff'])
 const TEMPORAL = new Set(['always', 'eventually', 'next', 'until', 'unless'])
 const PROPERTY_CALLS = new Set(['alive', 'crashed', 'correct', 'faulty'])
@@ -621,9 +594,9 @@ class ProtocolResolver {
     const span = ctx.span(node)
     switch (node.name) {
       case 'Number': {
-        const value = Number(ctx.text(node))
-        if (!Number.isSafeInteger(value)) { ctx.error(node, `the number ${ctx.text(node)} is too large; use a smaller value`); return null }
-        return { e: { k: 'lit', value, span }, sort: INT }
+        const read = integerLiteral(ctx.text(node))
+        if ('problem' in read) { ctx.error(node, read.problem); return null }
+        return { e: { k: 'lit', value: read.value, span }, sort: INT }
       }
       case 'Boolean': return { e: { k: 'lit', value: ctx.text(node) === 'true' ? 1 : 0, span }, sort: BOOL }
       case 'ParenExpression': return this.expr(expressionChildren(node)[0], scope, expected)
@@ -681,42 +654,8 @@ class ProtocolResolver {
         return a ? { e: { k: 'not', arg: a, span }, sort: BOOL } : null
       }
       case 'BinaryExpression':
-      case 'BoundArithmetic': {
-        const op = binaryOperator(node, ctx)
-        const [ln, rn] = expressionChildren(node)
-        if (TEMPORAL.has(op)) {
-          ctx.error(node, `\`${op}\` is a temporal operator and belongs in a property; a protocol expression speaks of the current state only`)
-          return null
-        }
-        if (ARITH.has(op)) {
-          const l = this.intExpr(ln, scope)
-          const r = this.intExpr(rn, scope)
-          return l && r ? { e: { k: 'bin', op: op as BinOp, left: l, right: r, span }, sort: INT } : null
-        }
-        if (LOGIC.has(op)) {
-          const l = this.boolExpr(ln, scope, `the left side of \`${op}\``)
-          const r = this.boolExpr(rn, scope, `the right side of \`${op}\``)
-          return l && r ? { e: { k: 'bin', op: op as BinOp, left: l, right: r, span }, sort: BOOL } : null
-        }
-        if (COMPARE.has(op)) {
-          let l = this.expr(ln, scope)
-          let r = this.expr(rn, scope, l?.sort)
-          if (l && !r) return null
-          if (!l) { r = r ?? null; return null }
-          if (!r) return null
-          if (op !== '=' && op !== '!=' && (l.sort.k !== 'int' || r.sort.k !== 'int')) {
-            ctx.error(node, `\`${op}\` compares integers, but this compares ${sortName(l.sort)} with ${sortName(r.sort)}; use \`=\` or \`!=\` for other values`)
-            return null
-          }
-          if (!sameSort(l.sort, r.sort)) {
-            ctx.error(node, `this compares ${sortName(l.sort)} with ${sortName(r.sort)}; compare values of the same type`)
-            return null
-          }
-          return { e: { k: 'bin', op: op as BinOp, left: l.e, right: r.e, span }, sort: BOOL }
-        }
-        ctx.error(node, `unknown operator \`${op}\`; see the guide for the operators`)
-        return null
-      }
+      case 'BoundArithmetic':
+        return this.binaryExpr(node, scope, span)
       case 'IfExpression': {
         const [cn, an, bn] = expressionChildren(node)
         const c = this.boolExpr(cn, scope, 'the condition of `if ... then ... else`')
@@ -742,6 +681,39 @@ class ProtocolResolver {
       }
     }
     ctx.error(node, `\`${ctx.text(node)}\` is not an expression here; see the guide for what expressions may contain`)
+    return null
+  }
+
+  /** A binary expression: arithmetic on integers, connectives on booleans, or a comparison. */
+  private binaryExpr(node: SyntaxNode, scope: Scope, span: Span): Typed | null {
+    const { ctx } = this
+    const op = binaryOperator(node, ctx)
+    const [ln, rn] = expressionChildren(node)
+    if (TEMPORAL.has(op)) {
+      ctx.error(node, `\`${op}\` is a temporal operator and belongs in a property; a protocol expression speaks of the current state only`)
+      return null
+    }
+    if (ARITH.has(op)) {
+      const l = this.intExpr(ln, scope)
+      const r = this.intExpr(rn, scope)
+      return l && r ? { e: { k: 'bin', op: op as BinOp, left: l, right: r, span }, sort: INT } : null
+    }
+    if (LOGIC.has(op)) {
+      const l = this.boolExpr(ln, scope, `the left side of \`${op}\``)
+      const r = this.boolExpr(rn, scope, `the right side of \`${op}\``)
+      return l && r ? { e: { k: 'bin', op: op as BinOp, left: l, right: r, span }, sort: BOOL } : null
+    }
+    if (COMPARE.has(op)) {
+      let l = this.expr(ln, scope)
+      let r = this.expr(rn, scope, l?.sort)
+      if (l && !r) return null
+      if (!l) { r = r ?? null; return null }
+      if (!r) return null
+      const problem = comparisonProblem(op, l.sort, r.sort)
+      if (problem) { ctx.error(node, problem); return null }
+      return { e: { k: 'bin', op: op as BinOp, left: l.e, right: r.e, span }, sort: BOOL }
+    }
+    ctx.error(node, `unknown operator \`${op}\`; see the guide for the operators`)
     return null
   }
 

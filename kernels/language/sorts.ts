@@ -80,6 +80,28 @@ export function indexByName(list: readonly { name: string }[], name: string): nu
 /** Labels shown when an enum is named in a message; longer enums are abbreviated. */
 const SHOWN_LABELS = 8
 
+/**
+ * Why `l op r` (op one of `=`, `!=`, `<`, `<=`, `>`, `>=`) is ill-typed, in one sentence, or null
+ * when it is well typed: an order compares integers, an equality values of one sort. Protocols and
+ * properties type their comparisons by this one rule.
+ */
+export function comparisonProblem(op: string, l: Sort, r: Sort): string | null {
+  if (op !== '=' && op !== '!=' && (l.k !== 'int' || r.k !== 'int')) {
+    return `\`${op}\` compares integers, but this compares ${sortName(l)} with ${sortName(r)}; use \`=\` or \`!=\` for other values`
+  }
+  if (!sameSort(l, r)) return `this compares ${sortName(l)} with ${sortName(r)}; compare values of the same type`
+  return null
+}
+
+/**
+ * The value of an integer literal as written, or the sentence saying it is too large to be exact
+ * (not a safe integer). Protocols and properties read their numbers by this one rule.
+ */
+export function integerLiteral(text: string): { value: number } | { problem: string } {
+  const value = Number(text)
+  return Number.isSafeInteger(value) ? { value } : { problem: `the number ${text} is too large for exact arithmetic (at most 2^53 - 1); use a smaller value` }
+}
+
 /** How a sort is named in messages. */
 export function sortName(s: Sort): string {
   if (s.k === 'int') return 'an integer'

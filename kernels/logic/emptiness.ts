@@ -10,7 +10,7 @@
 // A found component is turned into a short lasso afterwards: a breadth-first search from the
 // initial nodes to the nearest node of the component, then, inside the component, repeated
 // breadth-first searches to the nearest edge carrying a still-missing mark, and back.
-import { Int32Buffer } from './buffer'
+import { Int32Buffer } from '../base/buffer'
 
 /** Where a graph appends edges: plain arrays in tests, the search's packed buffers in the kernel. */
 export interface EdgeSink {

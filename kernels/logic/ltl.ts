@@ -5,6 +5,7 @@
 // - as written (every operator, from `fromModel` or the constructors);
 // - negation normal form (`nnf`): only true, false, atom, not-atom, and, or, next, until, release;
 // - simplified NNF (`simplify`): NNF rewritten with published rules, the input of `buildAutomaton`.
+import { MAX_ATOMS } from '../language/limits'
 import type { Formula, Term } from '../language/model'
 
 /**
@@ -27,12 +28,8 @@ export type UnaryOp = 'not' | 'next' | 'always' | 'eventually'
 /** The operators that take two arguments. `release` is the dual of `until`; `unless` is weak until. */
 export type BinaryOp = 'and' | 'or' | 'implies' | 'iff' | 'until' | 'release' | 'unless'
 
-/**
- * The largest number of distinct atoms a formula may use. Nothing in the translation depends on
- * it; it bounds the memory of the product, which keeps a row of ceil(atoms / 32) words per
- * reachable state (8 words, 32 bytes, at the limit).
- */
-export const MAX_ATOMS = 256
+/** The largest number of distinct atoms a formula may use (language/limits.ts). */
+export { MAX_ATOMS }
 
 /** The formula that every word satisfies. */
 export const TRUE: Ltl = { op: 'true' }

@@ -9,10 +9,10 @@
 // (bits 0..f-1) together with q's acceptance sets shifted above them (bits f..f+a-1): q's sets,
 // the source's, are the automaton's transition marks (see automaton.ts).
 import { type Automaton, type TranslationOptions, TranslationAborted, allAcceptance, letterOf, ltlToAutomaton } from './automaton'
-import { Int32Buffer } from './buffer'
+import { Int32Buffer } from '../base/buffer'
 import { type EdgeSink, type EmptinessOptions, type MarkedGraph, findAcceptingLasso } from './emptiness'
 import { type Ltl, not } from './ltl'
-import { PairMap } from './pairmap'
+import { PairMap } from '../base/pairmap'
 
 /** A system explored on the fly: states are integer ids the system assigns. */
 export interface System {

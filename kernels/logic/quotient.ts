@@ -36,12 +36,29 @@
 // fair accepting cycle exists in the full product iff some component passes the test. The test
 // decides the verdict only; a counterexample is found by the unreduced search (run.ts).
 import { allAcceptance } from './automaton'
-import { Int32Buffer } from './buffer'
+import { Int32Buffer } from '../base/buffer'
 import type { EdgeSink } from './emptiness'
 import type { Ltl } from './ltl'
-import { PairMap } from './pairmap'
+import { PairMap } from '../base/pairmap'
 import { type CheckLtlOptions, DENSE_NODES, labelTest, negationAutomaton } from './product'
-import type { Symmetries } from '../symmetry/group'
+
+/**
+ * A permutation group of the processes as a table (symmetry/group.ts builds it): elements are
+ * indices, 0 the identity, acting on fairness marks. The search reads permutations only so.
+ */
+export interface Symmetries {
+  /** Number of elements. */
+  readonly size: number
+  /** a ∘ b: the permutation that applies b, then a (0-based arrays: (a ∘ b)[i] = a[b[i]]). */
+  compose(a: number, b: number): number
+  inverse(a: number): number
+  /** The fairness bit that bit `bit` becomes when processes are renamed by a. */
+  mapBit(a: number, bit: number): number
+  /** The image under a of a set of fairness marks (bits 0..fairnessSets-1; higher bits are kept). */
+  mapMarks(a: number, marks: number): number
+  /** The permutation itself (perm[i] is the new name of process i). */
+  perm(a: number): readonly number[]
+}
 
 /** A quotient system: representatives as ids, edges annotated with permutations of `group`. */
 export interface QuotientSystem {

@@ -1,17 +1,10 @@
 // Packed states back to the canonical text of DEVELOPERS.md, the common ground with the reference
-// interpreter: JSON with keys sorted at every level, processes 1-based in keys, values as integers.
+// interpreter: canonical JSON (base/canonical.ts: keys sorted at every level), processes 1-based in
+// keys, values as integers.
+import { canonicalJson } from '../base/canonical'
 import { readField } from './layout'
 import type { Instance } from './instance'
 import { canonicalMessage } from './show'
-
-function sortedJson(v: unknown): string {
-  if (Array.isArray(v)) return '[' + v.map(sortedJson).join(',') + ']'
-  if (v !== null && typeof v === 'object') {
-    const o = v as Record<string, unknown>
-    return '{' + Object.keys(o).sort().map((k) => JSON.stringify(k) + ':' + sortedJson(o[k])).join(',') + '}'
-  }
-  return JSON.stringify(v)
-}
 
 /**
  * The canonical form of the state at words[off..]:
@@ -51,5 +44,5 @@ export function canonicalState(inst: Instance, words: Uint32Array, off: number):
   }
   const o: Record<string, unknown> = { procs, channels }
   if (layout.stable) o.stable = readField(words, off, layout.stable)
-  return sortedJson(o)
+  return canonicalJson(o)
 }

@@ -10,6 +10,20 @@
 import type { Expr, ProtocolModel, Span, Stmt, Target } from '../language/model'
 import type { Layout } from './layout'
 
+/** Where each variable of a process lives in `loc`: scalars at their slot, per-peer entries from their base. */
+function localSlots(protocol: ProtocolModel, n: number): { slotOf: Int32Array; entryBase: Int32Array; size: number } {
+  const slotOf = new Int32Array(protocol.vars.length).fill(-1)
+  const entryBase = new Int32Array(protocol.vars.length).fill(-1)
+  let size = 0
+  protocol.vars.forEach((d, v) => {
+    if (d.perPeer) {
+      entryBase[v] = size
+      size += n
+    } else slotOf[v] = size++
+  })
+  return { slotOf, entryBase, size }
+}
+
 /** Why a step failed; thrown inside the compiled closures and caught by the tick engine. */
 export class ExecFault {
   constructor(
@@ -68,15 +82,7 @@ export class Program {
 
   constructor(readonly protocol: ProtocolModel, readonly layout: Layout, readonly constants: number[]) {
     const n = layout.n
-    const slotOf = new Int32Array(protocol.vars.length).fill(-1)
-    const entryBase = new Int32Array(protocol.vars.length).fill(-1)
-    let size = 0
-    protocol.vars.forEach((d, v) => {
-      if (d.perPeer) {
-        entryBase[v] = size
-        size += n
-      } else slotOf[v] = size++
-    })
+    const { slotOf, entryBase, size } = localSlots(protocol, n)
     this.slotOf = slotOf
     this.entryBase = entryBase
     this.loc = new Int32Array(Math.max(1, size))
@@ -342,57 +348,58 @@ export class Program {
         }
       }
       case 'bin':
-        return this.binary(e.op, this.expr(e.left, span), this.expr(e.right, span), span)
+        return binary(e.op, this.expr(e.left, span), this.expr(e.right, span), span)
     }
   }
+}
 
-  // Both operands are always evaluated, `and`/`or` included: a guard does not hide a division by
-  // zero on its other side. `if E then E else E` is the one lazy form.
-  private binary(op: string, a: Num, b: Num, span: Span): Num {
-    switch (op) {
-      case '+': return () => a() + b()
-      case '-': return () => a() - b()
-      case '*': return () => a() * b()
-      case '/':
-        return () => {
-          const x = a()
-          const y = b()
-          if (y === 0) throw new ExecFault(span, 'division', null, null, null)
-          return Math.trunc(x / y)
-        }
-      case '%':
-        return () => {
-          const x = a()
-          const y = b()
-          if (y === 0) throw new ExecFault(span, 'modulo', null, null, null)
-          return x % y
-        }
-      case '=': return () => (a() === b() ? 1 : 0)
-      case '!=': return () => (a() !== b() ? 1 : 0)
-      case '<': return () => (a() < b() ? 1 : 0)
-      case '<=': return () => (a() <= b() ? 1 : 0)
-      case '>': return () => (a() > b() ? 1 : 0)
-      case '>=': return () => (a() >= b() ? 1 : 0)
-      case 'and':
-        return () => {
-          const x = a()
-          const y = b()
-          return x !== 0 && y !== 0 ? 1 : 0
-        }
-      case 'or':
-        return () => {
-          const x = a()
-          const y = b()
-          return x !== 0 || y !== 0 ? 1 : 0
-        }
-      case 'implies':
-        return () => {
-          const x = a()
-          const y = b()
-          return x === 0 || y !== 0 ? 1 : 0
-        }
-      case 'iff': return () => ((a() !== 0) === (b() !== 0) ? 1 : 0)
-    }
-    throw new Error(`unknown operator ${op}`)
+/** The closure of a binary operator over compiled operands. */
+// Both operands are always evaluated, `and`/`or` included: a guard does not hide a division by
+// zero on its other side. `if E then E else E` is the one lazy form.
+function binary(op: string, a: Num, b: Num, span: Span): Num {
+  switch (op) {
+    case '+': return () => a() + b()
+    case '-': return () => a() - b()
+    case '*': return () => a() * b()
+    case '/':
+      return () => {
+        const x = a()
+        const y = b()
+        if (y === 0) throw new ExecFault(span, 'division', null, null, null)
+        return Math.trunc(x / y)
+      }
+    case '%':
+      return () => {
+        const x = a()
+        const y = b()
+        if (y === 0) throw new ExecFault(span, 'modulo', null, null, null)
+        return x % y
+      }
+    case '=': return () => (a() === b() ? 1 : 0)
+    case '!=': return () => (a() !== b() ? 1 : 0)
+    case '<': return () => (a() < b() ? 1 : 0)
+    case '<=': return () => (a() <= b() ? 1 : 0)
+    case '>': return () => (a() > b() ? 1 : 0)
+    case '>=': return () => (a() >= b() ? 1 : 0)
+    case 'and':
+      return () => {
+        const x = a()
+        const y = b()
+        return x !== 0 && y !== 0 ? 1 : 0
+      }
+    case 'or':
+      return () => {
+        const x = a()
+        const y = b()
+        return x !== 0 || y !== 0 ? 1 : 0
+      }
+    case 'implies':
+      return () => {
+        const x = a()
+        const y = b()
+        return x === 0 || y !== 0 ? 1 : 0
+      }
+    case 'iff': return () => ((a() !== 0) === (b() !== 0) ? 1 : 0)
   }
+  throw new Error(`unknown operator ${op}`)
 }

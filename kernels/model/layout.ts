@@ -127,37 +127,10 @@ export function fieldMask(f: Field): number {
 export { MAX_PROCESSES }
 
 /**
- * Lays out the states of G_n of `protocol` under `constants` (one value per `protocol.consts`, in
- * order). Throws `ModelSetupError` for a non-positive delay or idle bound or an empty range.
+ * The message values of a protocol, numbered: kinds in declaration order, then field values in
+ * lexicographic order of the declared fields (DEVELOPERS.md, "Stage contracts").
  */
-export function makeLayout(protocol: ProtocolModel, n: number, constants: number[]): Layout {
-  if (!Number.isInteger(n) || n < 1 || n > MAX_PROCESSES) {
-    throw new ModelSetupError(`an instance needs 1 to ${MAX_PROCESSES} processes, not ${n}`, protocol.span)
-  }
-  if (constants.length !== protocol.consts.length) {
-    throw new ModelSetupError(`expected ${protocol.consts.length} constant values, got ${constants.length}`, protocol.span)
-  }
-  // The checker refused these already for the declared constants; a check's sweep may set others.
-  const problem = protocolProblems(protocol, constants)[0]
-  if (problem) throw new ModelSetupError(`${problem.message} (line ${problem.span.line}, column ${problem.span.column})`, problem.span)
-  const t = protocol.timing
-  let delay = 0
-  let idleBound = 0
-  if (t.kind !== 'asynchronous') {
-    delay = evalConst(t.delay, constants)
-    idleBound = evalConst(t.idle, constants)
-    if (delay < 1) throw new ModelSetupError(`the delay bound must be positive, but it is ${delay} (line ${t.span.line}, column ${t.span.column})`, t.span)
-    if (idleBound < 1) throw new ModelSetupError(`the idle bound must be positive, but it is ${idleBound} (line ${t.span.line}, column ${t.span.column})`, t.span)
-    if (delay > 31) throw new ModelSetupError(`a delay bound above 31 ticks is not supported (it is ${delay}, line ${t.span.line})`, t.span)
-  }
-  const tracksAges = t.kind !== 'asynchronous'
-
-  const vars: VarInfo[] = protocol.vars.map((d) => {
-    const [lo, hi] = typeBounds(d.type, constants, d.span)
-    if (bitsFor(hi - lo + 1) > 31) throw new ModelSetupError(`the type of '${d.name}' has too many values to pack (line ${d.span.line})`, d.span)
-    return { name: d.name, perPeer: d.perPeer, type: d.type, lo, hi, typeText: typeText(d.type, [lo, hi]) }
-  })
-
+function messageNumbering(protocol: ProtocolModel, constants: number[]) {
   const messages: MessageInfo[] = []
   let messageValues = 0
   let maxFields = 0
@@ -192,6 +165,67 @@ export function makeLayout(protocol: ProtocolModel, n: number, constants: number
       }
     }
   }
+  return { messages, messageValues, maxFields, valueKind, valueFields }
+}
+
+/** Per process: the mask of its own fields (procMask) and of its incoming channels (inMask). */
+function processMasks(n: number, words: number, alive: Field[], idle: Field[] | null, scalar: (Field | null)[][], entry: (Field | null)[][][],
+  channel: Field[][], channelTo: number[]): { procMask: Uint32Array[]; inMask: Uint32Array[] } {
+  const procMask: Uint32Array[] = []
+  const inMask: Uint32Array[] = []
+  for (let p = 0; p < n; p++) {
+    const pm = new Uint32Array(words)
+    const add = (f: Field | null) => {
+      if (f) pm[f.word] |= fieldMask(f)
+    }
+    add(alive[p])
+    if (idle) add(idle[p])
+    for (const f of scalar[p]) add(f)
+    for (const row of entry[p]) for (const f of row) add(f)
+    procMask.push(pm)
+    const im = new Uint32Array(words)
+    for (let c = 0; c < channel.length; c++) {
+      if (channelTo[c] !== p) continue
+      for (const f of channel[c]) im[f.word] |= fieldMask(f)
+    }
+    inMask.push(im)
+  }
+  return { procMask, inMask }
+}
+
+/**
+ * Lays out the states of G_n of `protocol` under `constants` (one value per `protocol.consts`, in
+ * order). Throws `ModelSetupError` for a non-positive delay or idle bound or an empty range.
+ */
+export function makeLayout(protocol: ProtocolModel, n: number, constants: number[]): Layout {
+  if (!Number.isInteger(n) || n < 1 || n > MAX_PROCESSES) {
+    throw new ModelSetupError(`an instance needs 1 to ${MAX_PROCESSES} processes, not ${n}`, protocol.span)
+  }
+  if (constants.length !== protocol.consts.length) {
+    throw new ModelSetupError(`expected ${protocol.consts.length} constant values, got ${constants.length}`, protocol.span)
+  }
+  // The checker refused these already for the declared constants; a check's sweep may set others.
+  const problem = protocolProblems(protocol, constants)[0]
+  if (problem) throw new ModelSetupError(`${problem.message} (line ${problem.span.line}, column ${problem.span.column})`, problem.span)
+  const t = protocol.timing
+  let delay = 0
+  let idleBound = 0
+  if (t.kind !== 'asynchronous') {
+    delay = evalConst(t.delay, constants)
+    idleBound = evalConst(t.idle, constants)
+    if (delay < 1) throw new ModelSetupError(`the delay bound must be positive, but it is ${delay} (line ${t.span.line}, column ${t.span.column})`, t.span)
+    if (idleBound < 1) throw new ModelSetupError(`the idle bound must be positive, but it is ${idleBound} (line ${t.span.line}, column ${t.span.column})`, t.span)
+    if (delay > 31) throw new ModelSetupError(`a delay bound above 31 ticks is not supported (it is ${delay}, line ${t.span.line})`, t.span)
+  }
+  const tracksAges = t.kind !== 'asynchronous'
+
+  const vars: VarInfo[] = protocol.vars.map((d) => {
+    const [lo, hi] = typeBounds(d.type, constants, d.span)
+    if (bitsFor(hi - lo + 1) > 31) throw new ModelSetupError(`the type of '${d.name}' has too many values to pack (line ${d.span.line})`, d.span)
+    return { name: d.name, perPeer: d.perPeer, type: d.type, lo, hi, typeText: typeText(d.type, [lo, hi]) }
+  })
+
+  const { messages, messageValues, maxFields, valueKind, valueFields } = messageNumbering(protocol, constants)
 
   const fields: Field[] = []
   let word = 0
@@ -253,25 +287,7 @@ export function makeLayout(protocol: ProtocolModel, n: number, constants: number
   const stable = t.kind === 'eventually synchronous' ? place('stable', 1) : null
   const words = used === 0 && word === 0 ? 1 : word + 1
 
-  const procMask: Uint32Array[] = []
-  const inMask: Uint32Array[] = []
-  for (let p = 0; p < n; p++) {
-    const pm = new Uint32Array(words)
-    const add = (f: Field | null) => {
-      if (f) pm[f.word] |= fieldMask(f)
-    }
-    add(alive[p])
-    if (idle) add(idle[p])
-    for (const f of scalar[p]) add(f)
-    for (const row of entry[p]) for (const f of row) add(f)
-    procMask.push(pm)
-    const im = new Uint32Array(words)
-    for (let c = 0; c < channel.length; c++) {
-      if (channelTo[c] !== p) continue
-      for (const f of channel[c]) im[f.word] |= fieldMask(f)
-    }
-    inMask.push(im)
-  }
+  const { procMask, inMask } = processMasks(n, words, alive, idle, scalar, entry, channel, channelTo)
 
   return {
     n, words, timing: t.kind, delay, idleBound, tracksAges, vars, messages, messageValues, valueKind, valueFields,

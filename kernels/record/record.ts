@@ -8,7 +8,7 @@ import pkg from '../../package.json' with { type: 'json' }
 import type { BlockRef, NotebookModel } from '../language/model'
 import type { CheckRow, ErrorEntry, Report } from '../result'
 import { planDigest, planOf, shardIndices } from '../plan'
-import { sha256Hex } from './hash'
+import { sha256Hex } from '../base/hash'
 
 /** The record format this kernel writes and reads. */
 // Version 2: the notebook text is embedded, the plan is stated, a shard lists its planned rows.

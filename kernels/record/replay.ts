@@ -2,11 +2,11 @@
 // Every field is compared except the times (each row's `seconds` and the record's `created`): a
 // check that explores the same states must find the same counts, verdicts and counterexamples.
 import type { CheckRow, Progress } from '../result'
-import { canonicalJson, canonicalJsonPretty } from './canonical'
+import { canonicalJson, canonicalJsonPretty } from '../base/canonical'
 import { shardIndices } from '../plan'
 import { RECORD_TYPE, typeFault } from './schema'
 import { StrictJsonError, lineColumn, parseStrictJson } from './strict-json'
-import { sha256Hex } from './hash'
+import { sha256Hex } from '../base/hash'
 import type { RecordKernel } from './kernel'
 import { RECORD_FORMAT, buildRecord, hashBlocks, type BlockHash, type VerificationRecord } from './record'
 

@@ -1,7 +1,7 @@
 // Shards: a deterministic share of a notebook's row plan, so CI can spread one notebook's checks
 // over several machines, and the merge that joins the shards' records back into the record an
 // unsharded run would have written.
-import { canonicalJson } from './canonical'
+import { canonicalJson } from '../base/canonical'
 import type { Shard, VerificationRecord } from './record'
 
 export type { Shard } from './record'

@@ -3,22 +3,10 @@
 // inverses and the action on the fairness marks of semantics.md (fairgraph.ts `fairMarks`: bit i
 // for process i, then one bit per channel j->i, last `stable`). The temporal route under symmetry
 // reduction (logic/quotient.ts) reads permutations only through this table.
+import type { Symmetries } from '../logic/quotient'
 import { freePermutations } from './canon'
 
-/** Permutations as table indices; see the file comment. */
-export interface Symmetries {
-  /** Number of elements. */
-  readonly size: number
-  /** a ∘ b: the permutation that applies b, then a (0-based arrays: (a ∘ b)[i] = a[b[i]]). */
-  compose(a: number, b: number): number
-  inverse(a: number): number
-  /** The fairness bit that bit `bit` becomes when processes are renamed by a. */
-  mapBit(a: number, bit: number): number
-  /** The image under a of a set of fairness marks (bits 0..fairnessSets-1; higher bits are kept). */
-  mapMarks(a: number, marks: number): number
-  /** The permutation itself (perm[i] is the new name of process i). */
-  perm(a: number): readonly number[]
-}
+export type { Symmetries }
 
 /**
  * The permutations of 0..n-1 that keep `fixed` in place, acting on the fairness marks of an

@@ -48,7 +48,7 @@ export const kernelApi = {
     })
   },
   /**
-   * The SHA-256 of each text (kernels/record/hash.ts), as 64 hex digits. Where Web Crypto is
+   * The SHA-256 of each text (kernels/base/hash.ts), as 64 hex digits. Where Web Crypto is
    * missing (a page served over plain HTTP), each text itself prefixed `text:` stands in, so the
    * page can still key its cache; such a key is never written into a record.
    */

@@ -1,6 +1,6 @@
 // `twofold check NOTEBOOK.md`: run every check of a notebook, print the report (table, JSON, JUnit or SARIF),
 // optionally write a verification record, and answer with the exit code CI acts on.
-import { canonicalJsonPretty } from '../../kernels/record/canonical'
+import { canonicalJsonPretty } from '../../kernels/base/canonical'
 import type { RecordKernel } from '../../kernels/record/kernel'
 import { buildRecord } from '../../kernels/record/record'
 import type { RunOptions } from '../../kernels/api'

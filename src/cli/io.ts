@@ -3,6 +3,7 @@
 // read what it printed.
 import { readFile } from 'node:fs/promises'
 import { resolve } from 'node:path'
+import { errorText } from '../../kernels/base/error-text'
 import type { RecordKernel } from '../../kernels/record/kernel'
 import type { VerificationRecord } from '../../kernels/record/record'
 import { RecordError, parseRecord } from '../../kernels/record/replay'
@@ -114,6 +115,6 @@ export function describe(e: unknown): string {
   if (err && err.code === 'ENOENT') return 'no such file'
   if (err && err.code === 'EISDIR') return 'it is a directory'
   if (err && err.code === 'EACCES') return 'permission denied'
-  const message = e instanceof Error ? e.message : String(e)
+  const message = errorText(e)
   return message.split('\n')[0]
 }

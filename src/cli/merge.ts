@@ -1,6 +1,6 @@
 // `twofold merge A.json B.json ...`: join the records of shards 1/N..N/N into the record of the
 // whole run, printed on stdout. Exit 2, with the reason, when they are not the shards of one run.
-import { canonicalJsonPretty } from '../../kernels/record/canonical'
+import { canonicalJsonPretty } from '../../kernels/base/canonical'
 import { ShardError, mergeRecords } from '../../kernels/record/shard'
 import { HOLDS, REFUSED } from './exit'
 import { CliFailure, readRecordFile, type CliIo } from './io'

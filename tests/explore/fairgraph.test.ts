@@ -5,7 +5,7 @@
 // the same edges in the same order.
 import { describe, expect, it } from 'vitest'
 import { analyzeNotebook } from '../../kernels/language/analyze'
-import { ChunkedInt32 } from '../../kernels/explore/chunked'
+import { ChunkedInt32 } from '../../kernels/base/chunked'
 import { FairGraphRecorder, systemOf } from '../../kernels/explore/fairgraph'
 import { explore } from '../../kernels/explore/reach'
 import { canonicalState } from '../../kernels/model/decode'

@@ -6,7 +6,7 @@
 import { describe, expect, it } from 'vitest'
 import { analyzeNotebook } from '../../kernels/language/analyze'
 import { explore, type EdgeRecorder } from '../../kernels/explore/reach'
-import { isOutOfMemory, MemoryExhausted, StateStore } from '../../kernels/explore/stateset'
+import { isOutOfMemory, MemoryExhausted, StateStore } from '../../kernels/base/stateset'
 import { readField } from '../../kernels/model/layout'
 import { planRows, runRow } from '../../kernels/run'
 import { instanceOf } from '../model/fixtures'

@@ -5,7 +5,7 @@
 import { join } from 'node:path'
 import fc from 'fast-check'
 import { afterAll, describe, expect, it, vi } from 'vitest'
-import { canonicalJsonPretty } from '../../kernels/record/canonical'
+import { canonicalJsonPretty } from '../../kernels/base/canonical'
 import type { RecordKernel } from '../../kernels/record/kernel'
 import { buildRecord } from '../../kernels/record/record'
 import { workspace } from '../cli/harness'

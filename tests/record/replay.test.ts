@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { canonicalJsonPretty } from '../../kernels/record/canonical'
+import { canonicalJsonPretty } from '../../kernels/base/canonical'
 import { buildRecord, type VerificationRecord } from '../../kernels/record/record'
 import { RecordError, compareRecords, formatDifference, parseRecord, replayRecord } from '../../kernels/record/replay'
 import type { RecordKernel } from '../../kernels/record/kernel'

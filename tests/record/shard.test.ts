@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { canonicalJson } from '../../kernels/record/canonical'
+import { canonicalJson } from '../../kernels/base/canonical'
 import { buildRecord, type VerificationRecord } from '../../kernels/record/record'
 import { compareRecords } from '../../kernels/record/replay'
 import { ShardError, inShard, mergeRecords, parseShard } from '../../kernels/record/shard'

@@ -5,7 +5,7 @@
 import { describe, expect, it } from 'vitest'
 import { analyzeNotebook } from '../../kernels/language/analyze'
 import type { Term } from '../../kernels/language/model'
-import { StateStore } from '../../kernels/explore/stateset'
+import { StateStore } from '../../kernels/base/stateset'
 import { explore } from '../../kernels/explore/reach'
 import { compileInstance, type Instance } from '../../kernels/model/instance'
 import { compileTerm } from '../../kernels/model/observe'

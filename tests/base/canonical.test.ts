@@ -1,6 +1,6 @@
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
-import { canonicalJson, canonicalJsonPretty } from '../../kernels/record/canonical'
+import { canonicalJson, canonicalJsonPretty } from '../../kernels/base/canonical'
 
 /** The same value with every object's keys in reverse insertion order. */
 function reversedKeys(value: unknown): unknown {

@@ -1,7 +1,7 @@
 import { createHash } from 'node:crypto'
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
-import { isSha256Hex, sha256Hex } from '../../kernels/record/hash'
+import { isSha256Hex, sha256Hex } from '../../kernels/base/hash'
 
 describe('sha256Hex', () => {
   it('matches the published one-block test vector for "abc"', async () => {

@@ -1,7 +1,7 @@
 // Oracle: a JavaScript Set of the keys' text, fed the same random keys.
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
-import { StateStore } from '../../kernels/explore/stateset'
+import { StateStore } from '../../kernels/base/stateset'
 
 describe('state store', () => {
   it('agrees with a Set of strings on random keys, indices in insertion order', () => {

@@ -10,6 +10,7 @@ import { instantiatedText } from './language/instantiate'
 import type { CheckModel, Formula, NotebookModel, PropertyModel, ProtocolModel, Term } from './language/model'
 import { FairGraphRecorder, lassoTicks, systemOf } from './explore/fairgraph'
 import { explore } from './explore/reach'
+import { exploreWith, type ParallelJob } from './explore/parallel'
 import { modelErrorCounterexample, traceCounterexample } from './explore/trace'
 import { fromModel } from './logic/ltl'
 import { checkLtl, type System } from './logic/product'
@@ -35,6 +36,25 @@ function divides(t: Term): boolean {
     case 'neg': return divides(t.arg)
     default: return false
   }
+}
+
+/**
+ * The invariant of an `always P` row: P over every chosen assignment; `failed` tells which
+ * assignment broke it last. Exported for the parallel explorer's workers, which rebuild it from
+ * plain data (kernels/explore/worker.ts).
+ */
+export function rowInvariant(inst: Instance, inv: Formula, terms: Term[], chosen: number[][]): { invariant: (w: Uint32Array, o: number) => boolean; failed: () => number } {
+  const predicates = chosen.map((a) => statePredicate(inv, (t) => compileTerm(inst, t, a)))
+  // A division in the property is evaluated in every atom on every state, whatever the connectives
+  // around it, so that a division by zero is a model error (as in protocols) however it is guarded.
+  const dividing = terms.some(divides) ? chosen.map((a) => terms.map((t) => compileTerm(inst, t, a))) : null
+  let failed = -1
+  const invariant = (w: Uint32Array, o: number): boolean => {
+    if (dividing) for (const atoms of dividing) for (const t of atoms) t(w, o)
+    for (let k = 0; k < predicates.length; k++) if (!predicates[k](w, o)) { failed = k; return false }
+    return true
+  }
+  return { invariant, failed: () => failed }
 }
 
 /** Does the formula contain a temporal operator? */
@@ -236,16 +256,8 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   if (!inv && n > MAX_TEMPORAL_PROCESSES) {
     throw new ModelSetupError(`temporal properties are checked on at most ${MAX_TEMPORAL_PROCESSES} processes (their fairness conditions must fit the temporal product's 31 marks), not ${n} (line ${prop.span.line}, column ${prop.span.column})`, prop.span)
   }
-  const predicates = inv ? chosen.map((a) => statePredicate(inv, (t) => compileTerm(inst, t, a))) : []
-  // A division in the property is evaluated in every atom on every state, whatever the connectives
-  // around it, so that a division by zero is a model error (as in protocols) however it is guarded.
-  const dividing = inv && terms.some(divides) ? chosen.map((a) => terms.map((t) => compileTerm(inst, t, a))) : null
-  let failed = -1
-  const invariant = inv ? (w: Uint32Array, o: number) => {
-    if (dividing) for (const atoms of dividing) for (const t of atoms) t(w, o)
-    for (let k = 0; k < predicates.length; k++) if (!predicates[k](w, o)) { failed = k; return false }
-    return true
-  } : undefined
+  const built = inv ? rowInvariant(inst, inv, terms, chosen) : null
+  const invariant = built?.invariant
   // Cross-checks above the cutoff size use symmetry reduction for invariants: the processes the
   // property names stay fixed and the others are interchangeable (the class check granted it, and
   // a protocol cannot tell processes apart). Temporal properties are checked unreduced, because
@@ -275,7 +287,9 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   }
   // The temporal route records the fair graph in the same pass (unless told to save memory).
   const recorder = inv ? undefined : new FairGraphRecorder(inst, opts.recomputeEdges ? 0 : undefined)
-  const r = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: progress, invariant, edges: recorder })
+  // Invariant rows run on `opts.workers` workers where a pool is available (explore/parallel.ts).
+  const job: ParallelJob = { protocol, n, constants, invariant: inv ? { formula: inv, terms, chosen } : null, fault: opts.workerFault }
+  const r = exploreWith(inst, { limit, shouldStop: opts.shouldStop, onProgress: progress, invariant, edges: recorder }, opts.workers, job)
   row.states = r.states
   row.transitions = r.transitions
   row.method = 'exploration'
@@ -290,7 +304,7 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   }
   if (r.outcome === 'violation' && r.trace) {
     const path = r.trace
-    const a = chosen[failed] ?? chosen[0]
+    const a = chosen[built?.failed() ?? -1] ?? chosen[0]
     const ticks = path.length - 1
     row.verdict = 'violated'
     row.complete = false

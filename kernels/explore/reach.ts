@@ -55,6 +55,13 @@ export interface ExploreOptions {
   continueOnError?: boolean
   /** Records every edge during the search (see `EdgeRecorder`); incompatible with `canonicalize`. */
   edges?: EdgeRecorder
+  /**
+   * Go on from a search done elsewhere (the parallel explorer, parallel.ts): `store` holds levels
+   * 0..L numbered as this search numbers them, `levelStart` the starts of those levels (the last
+   * is `head`, where level L starts) and `transitions` those of levels before L. Initial states
+   * are not read again.
+   */
+  resume?: { store: StateStore; levelStart: number[]; head: number; transitions: number }
 }
 
 export interface ExploreResult {
@@ -81,7 +88,7 @@ export interface ExploreResult {
  * Distinct targets of one source: an open-addressing set of store indices whose slots are
  * invalidated by bumping a stamp, so starting a new source costs nothing.
  */
-class TargetSet {
+export class TargetSet {
   private keys = new Int32Array(64)
   private stamps = new Int32Array(64)
   private list: number[] = []
@@ -128,9 +135,10 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
   const W = inst.words
   const limit = opts.limit ?? Infinity
   const invariant = opts.invariant
-  const store = new StateStore(W, 1024)
-  const levelStart: number[] = [0]
-  let transitions = 0
+  const resume = opts.resume
+  const store = resume ? resume.store : new StateStore(W, 1024)
+  const levelStart: number[] = resume ? resume.levelStart.slice() : [0]
+  let transitions = resume ? resume.transitions : 0
   let halted = false
   let limitHit = false
   let stopped = false
@@ -142,7 +150,7 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
   const rec = opts.edges
   if (rec && canon) throw new Error('internal error: edges are recorded between real states, not representatives')
   const rep = new Uint32Array(W)
-  let init = inst.initialStates()
+  let init = resume ? new Uint32Array(0) : inst.initialStates()
   if (canon) {
     const reps = new Uint32Array(init.length)
     for (let off = 0; off < init.length; off += W) { canon(init, off, rep); reps.set(rep, off) }
@@ -203,7 +211,7 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
   // One bound object for the whole search (no allocation per state); see expansion.ts.
   const bound: ExpansionBound = { room: limit, stop: opts.shouldStop, stopAtError: !opts.continueOnError, interrupted: false }
   const src = new Uint32Array(W)
-  let head = 0
+  let head = resume ? resume.head : 0
   let levelEnd = store.size
   let lastReport = t0
   let sinceCheck = 0

@@ -296,6 +296,7 @@ export class TickEngine {
     if (known >= 0) {
       this.starts[slot] = this.memoStart[known]
       this.counts[slot] = this.memoCount[known]
+      if (this.bound && this.counts[slot] > (this.bound.widest ?? 0)) this.bound.widest = this.counts[slot]
       return this.memoError.get(known) ?? null
     }
     const start = this.poolLen
@@ -303,6 +304,7 @@ export class TickEngine {
     const cut = this.lastCut
     this.starts[slot] = start
     this.counts[slot] = this.poolLen - start
+    if (this.bound && this.counts[slot] > (this.bound.widest ?? 0)) this.bound.widest = this.counts[slot]
     if (cut || this.bound?.interrupted) {
       this.cut = this.cut || cut
       return err

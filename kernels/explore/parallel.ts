@@ -55,7 +55,16 @@ export interface SharedBuffers {
 export interface ExplorePool {
   size: number
   buffers: SharedBuffers
+  /** Starts the workers if they are not running (synchronous: they may be started ahead). */
+  start(): void
 }
+
+/**
+ * Levels narrower than `minFrontier` sources are expanded on the coordinator's thread with the
+ * same code (a tiny search never starts the workers, and the first levels cost no wake-ups).
+ * Tests set it to 0 to run every level on the workers.
+ */
+export const parallelTuning = { minFrontier: 2048 }
 
 /** Where pools come from: Node (pool-node.ts) and the workbench register their own. */
 export type PoolProvider = (workers: number) => ExplorePool | null
@@ -144,16 +153,14 @@ export function exploreParallel(inst: Instance, opts: ExploreOptions, job: Paral
   const t0 = performance.now()
   const W = inst.words
   const limit = opts.limit ?? Infinity
-  const P = pool.size
   const buf = pool.buffers
+  /** Workers taking part: 1 (this thread) until a level is wide enough, then the pool's. */
+  let P = 1
+  let pooled = false
   const ctrl = new Int32Array(buf.ctrl)
   const err = new Uint8Array(buf.err)
   // Length-tracking views: they follow the buffers' growth.
-  const tableV = (): Int32Array => new Int32Array(buf.table)
-  const arenaV = (): Uint32Array => new Uint32Array(buf.arena)
-  const minSrc = new Int32Array(buf.minSrc)
-  const slotOf = new Int32Array(buf.slotOf)
-  const blocks = new Int32Array(buf.blocks)
+  const arenaV = (): Uint32Array => u32(buf.arena)
   const invariant = opts.invariant
 
   // Level 0 on this thread: the initial states, deduplicated and checked as explore() does; if
@@ -178,6 +185,7 @@ export function exploreParallel(inst: Instance, opts: ExploreOptions, job: Paral
   let transitions = 0
   /** Runs one phase on every worker; polls stop requests and progress while it waits. */
   const phase = (kind: number): void => {
+    if (!pooled) return runLocal(kind)
     Atomics.store(ctrl, C.DONE, 0)
     Atomics.store(ctrl, C.NEXT, 0)
     Atomics.store(ctrl, C.PHASE, kind)
@@ -208,15 +216,38 @@ export function exploreParallel(inst: Instance, opts: ExploreOptions, job: Paral
     }
   }
 
-  // The job: each worker compiles its own instance and invariant from plain data.
-  const jobBytes = new TextEncoder().encode(JSON.stringify(job))
-  if (!ensure(buf.job, jobBytes.length)) return explore(inst, opts)
-  new Uint8Array(buf.job).set(jobBytes)
-  ctrl[C.JOBLEN] = jobBytes.length
-  ctrl[C.WORKERS] = P
+  // This thread's own views and level record, for the levels it expands itself.
+  const localViews: WorkerViews = {
+    ctrl, err, job: buf.job, table: buf.table, arena: buf.arena, stage: buf.stage, minSrc: buf.minSrc, slotOf: buf.slotOf, blocks: buf.blocks,
+  }
+  const localJob: CompiledJob = { inst, invariant }
+  const localState = new LevelState(W)
+  const runLocal = (kind: number): void => {
+    Atomics.store(ctrl, C.NEXT, 0)
+    switch (kind) {
+      case PHASE.CLEAR: clearPhase(localViews); break
+      case PHASE.REHASH: rehashPhase(localViews, W); break
+      case PHASE.EXPAND: expandPhase(localViews, 0, localJob, localState); break
+      case PHASE.COUNT: countPhase(localViews, localState); break
+      case PHASE.ASSIGN: assignPhase(localViews, localState); break
+    }
+    if (!stopped && opts.shouldStop && opts.shouldStop()) stopped = true
+  }
+  /** Hands the search to the pool: each worker compiles its own instance and invariant from plain data. */
+  const startPool = (): boolean => {
+    const jobBytes = new TextEncoder().encode(JSON.stringify(job))
+    if (!ensure(buf.job, jobBytes.length)) return false
+    pool.start()
+    new Uint8Array(buf.job).set(jobBytes)
+    ctrl[C.JOBLEN] = jobBytes.length
+    ctrl[C.WORKERS] = pool.size
+    err.fill(0)
+    pooled = true
+    P = pool.size
+    phase(PHASE.JOB)
+    return true
+  }
   ctrl[C.STOPREQ] = 0
-  err.fill(0)
-  phase(PHASE.JOB)
 
   let touchedStage = 0
   let touchedArena = 0
@@ -253,6 +284,7 @@ export function exploreParallel(inst: Instance, opts: ExploreOptions, job: Paral
   /** Clears the pending slots of an undone level. */
   const discard = (): void => {
     const table = tableVFixed()
+    const slotOf = i32(buf.slotOf)
     const reserved = Math.min(Math.max(0, Atomics.load(ctrl, C.RESERVE)), ctrl[C.MAXPEND])
     for (let p = 0; p < reserved; p++) {
       const s = slotOf[p]
@@ -281,6 +313,7 @@ export function exploreParallel(inst: Instance, opts: ExploreOptions, job: Paral
     const b = size
     const frontier = b - a
     const expected = Math.ceil(frontier * ratio * 1.25) + 1024
+    if (!pooled && frontier >= parallelTuning.minFrontier && !startPool()) return handover()
     let redo = true
     while (redo) {
       redo = false
@@ -322,6 +355,7 @@ export function exploreParallel(inst: Instance, opts: ExploreOptions, job: Paral
     if (size + fresh > limit || widest >= limit - (size + fresh)) { discard(); return handover() }
     phase(PHASE.COUNT)
     const nb = Math.ceil(frontier / BLOCK)
+    const blocks = i32(buf.blocks)
     let base = size
     for (let k = 0; k < nb; k++) { const c = blocks[k]; blocks[k] = base; base += c }
     if (base !== size + fresh) throw new Error(`internal error: the parallel search numbered ${base - size} of ${fresh} new states`)
@@ -346,10 +380,15 @@ interface WorkerViews {
   table: SharedArrayBuffer
   arena: SharedArrayBuffer
   stage: SharedArrayBuffer
-  minSrc: Int32Array
-  slotOf: Int32Array
-  blocks: Int32Array
+  minSrc: SharedArrayBuffer
+  slotOf: SharedArrayBuffer
+  blocks: SharedArrayBuffer
 }
+
+// Views of the growable buffers are made at their current length for each phase: a
+// length-tracking view is many times slower to index in V8.
+function i32(sab: SharedArrayBuffer): Int32Array { return new Int32Array(sab, 0, sab.byteLength >> 2) }
+function u32(sab: SharedArrayBuffer): Uint32Array { return new Uint32Array(sab, 0, sab.byteLength >> 2) }
 
 /** Writes a fault message for the coordinator. */
 export function reportFault(buffers: SharedBuffers, index: number, e: unknown): void {
@@ -377,8 +416,8 @@ export interface CompiledJob {
 export function serveExploration(buffers: SharedBuffers, index: number, compile: (job: ParallelJob) => CompiledJob): void {
   const v: WorkerViews = {
     ctrl: new Int32Array(buffers.ctrl), err: new Uint8Array(buffers.err), job: buffers.job, table: buffers.table,
-    arena: buffers.arena, stage: buffers.stage, minSrc: new Int32Array(buffers.minSrc), slotOf: new Int32Array(buffers.slotOf),
-    blocks: new Int32Array(buffers.blocks),
+    arena: buffers.arena, stage: buffers.stage, minSrc: buffers.minSrc, slotOf: buffers.slotOf,
+    blocks: buffers.blocks,
   }
   const ctrl = v.ctrl
   // A pool's workers start before its first phase: generation 0.
@@ -427,9 +466,9 @@ const PAGE_WORDS = 1024
 function clearPhase(v: WorkerViews): void {
   const ctrl = v.ctrl
   const clearTo = ctrl[C.CLEAR_TO]
-  const table = new Int32Array(v.table)
-  const stage = new Uint32Array(v.stage)
-  const arena = new Uint32Array(v.arena)
+  const table = i32(v.table)
+  const stage = u32(v.stage)
+  const arena = u32(v.arena)
   const sf = ctrl[C.STAGE_FROM], st = ctrl[C.STAGE_TO], af = ctrl[C.ARENA_FROM], at = ctrl[C.ARENA_TO]
   const CH = 1 << 16
   const n1 = Math.ceil(clearTo / CH), n2 = Math.ceil((st - sf) / CH), n3 = Math.ceil((at - af) / CH)
@@ -445,8 +484,8 @@ function clearPhase(v: WorkerViews): void {
 function rehashPhase(v: WorkerViews, W: number): void {
   const ctrl = v.ctrl
   const size = ctrl[C.SIZE], mask = ctrl[C.MASK]
-  const table = new Int32Array(v.table)
-  const arena = new Uint32Array(v.arena)
+  const table = i32(v.table)
+  const arena = u32(v.arena)
   for (const [from, to] of chunks(ctrl, size, 4096)) {
     for (let idx = from; idx < to; idx++) {
       let slot = hashWords(arena, idx * W, W) & mask
@@ -513,10 +552,10 @@ function expandPhase(v: WorkerViews, index: number, job: CompiledJob, st: LevelS
   const { inst, invariant } = job
   const W = inst.words
   const a = ctrl[C.A], b = ctrl[C.B], mask = ctrl[C.MASK], maxPend = ctrl[C.MAXPEND], B = ctrl[C.BLOCK]
-  const table = new Int32Array(v.table)
-  const arena = new Uint32Array(v.arena)
-  const stage = new Uint32Array(v.stage)
-  const minSrc = v.minSrc, slotOf = v.slotOf
+  const table = i32(v.table)
+  const arena = u32(v.arena)
+  const stage = u32(v.stage)
+  const minSrc = i32(v.minSrc), slotOf = i32(v.slotOf)
   st.reset()
   const seen = new Seen()
   let transitions = 0
@@ -531,7 +570,10 @@ function expandPhase(v: WorkerViews, index: number, job: CompiledJob, st: LevelS
     let id: number
     let fresh = false
     for (;;) {
-      const e = Atomics.load(table, slot)
+      // A plain read: committed entries and their states were written before this phase; an
+      // empty or pending entry is read again atomically below.
+      let e = table[slot]
+      if (e <= 0) e = Atomics.load(table, slot)
       if (e === 0) {
         if (spare < 0) {
           spare = Atomics.add(ctrl, C.RESERVE, 1)
@@ -619,7 +661,7 @@ function expandPhase(v: WorkerViews, index: number, job: CompiledJob, st: LevelS
 function walkOwned(v: WorkerViews, st: LevelState, begin: (blk: number) => void, owned: (p: number) => void): void {
   const ctrl = v.ctrl
   const a = ctrl[C.A], b = ctrl[C.B], B = ctrl[C.BLOCK]
-  const minSrc = v.minSrc
+  const minSrc = i32(v.minSrc)
   let e = 0
   let seg = 0
   for (const blk of st.blockIds) {
@@ -638,19 +680,21 @@ function walkOwned(v: WorkerViews, st: LevelState, begin: (blk: number) => void,
 function countPhase(v: WorkerViews, st: LevelState): void {
   let cur = -1
   let count = 0
-  walkOwned(v, st, (blk) => { if (cur >= 0) v.blocks[cur] = count; cur = blk; count = 0 }, () => { count++ })
-  if (cur >= 0) v.blocks[cur] = count
+  const blocks = i32(v.blocks)
+  walkOwned(v, st, (blk) => { if (cur >= 0) blocks[cur] = count; cur = blk; count = 0 }, () => { count++ })
+  if (cur >= 0) blocks[cur] = count
 }
 
 function assignPhase(v: WorkerViews, st: LevelState): void {
-  const table = new Int32Array(v.table)
-  const arena = new Uint32Array(v.arena)
-  const stage = new Uint32Array(v.stage)
+  const table = i32(v.table)
+  const arena = u32(v.arena)
+  const stage = u32(v.stage)
   const W = st.W
   let next = 0
-  walkOwned(v, st, (blk) => { next = v.blocks[blk] }, (p) => {
+  const blocks = i32(v.blocks), slotOf = i32(v.slotOf)
+  walkOwned(v, st, (blk) => { next = blocks[blk] }, (p) => {
     const to = next++ * W, from = p * W
     for (let k = 0; k < W; k++) arena[to + k] = stage[from + k]
-    Atomics.store(table, v.slotOf[p], next)
+    Atomics.store(table, slotOf[p], next)
   })
 }

@@ -16,27 +16,33 @@ export function cores(): number {
   return availableParallelism()
 }
 
-/** A started pool of n workers (made on first use, then kept; threads do not keep Node alive). */
+/** The pool of n workers (made on first use, then kept; its threads start on first `start`). */
 export function nodePool(n: number): ExplorePool {
   const known = pools.get(n)
   if (known) return known
   const buffers = createSharedBuffers()
   const ctrl = new Int32Array(buffers.ctrl)
   const workers: Worker[] = []
-  for (let index = 0; index < n; index++) {
-    const w = new Worker(new URL('./parallel-node.mjs', import.meta.url), { workerData: { buffers, index, readyWord: READY } })
-    w.unref()
-    workers.push(w)
+  const pool: NodePool = {
+    size: n, buffers, workers,
+    start() {
+      if (workers.length > 0) return
+      for (let index = 0; index < n; index++) {
+        const w = new Worker(new URL('./parallel-node.mjs', import.meta.url), { workerData: { buffers, index, readyWord: READY } })
+        // Threads do not keep Node alive; they are ended with the process.
+        w.unref()
+        workers.push(w)
+      }
+      // Workers start on their own threads, so this thread may block until they are all up.
+      const deadline = Date.now() + 120_000
+      for (;;) {
+        const ready = Atomics.load(ctrl, READY)
+        if (ready >= n) break
+        if (Date.now() > deadline) throw new Error(`parallel exploration workers did not start (${ready} of ${n} within two minutes)`)
+        Atomics.wait(ctrl, READY, ready, 1000)
+      }
+    },
   }
-  // Workers start on their own threads, so this thread may block until they are all up.
-  const deadline = Date.now() + 120_000
-  for (;;) {
-    const ready = Atomics.load(ctrl, READY)
-    if (ready >= n) break
-    if (Date.now() > deadline) throw new Error(`parallel exploration workers did not start (${ready} of ${n} within two minutes)`)
-    Atomics.wait(ctrl, READY, ready, 1000)
-  }
-  const pool: NodePool = { size: n, buffers, workers }
   pools.set(n, pool)
   return pool
 }

@@ -2,6 +2,7 @@
 // in-process baseline in the same run (so that the numbers compare on any machine).
 import { exploreCases, hashBaseline } from './explore'
 import { inductionCases } from './induction'
+import { parallelCases } from './parallel'
 import { parseCases } from './parse'
 import { productCases } from './product'
 import { reductionCases } from './reduction'
@@ -17,6 +18,7 @@ const product = productCases(root)
 const temporal = temporalCases()
 const reduction = reductionCases()
 const induction = await inductionCases(60)
+const parallel = await parallelCases()
 
 const transitionsPerSecond = (c: { transitions: number; seconds: number }) => c.transitions / c.seconds
 const best = Math.max(...cases.map(transitionsPerSecond))
@@ -29,6 +31,7 @@ const report = {
   temporal,
   reduction,
   induction,
+  parallel,
 }
 
 if (json) {
@@ -52,6 +55,11 @@ if (json) {
   console.log('Symmetry reduction against unreduced search (goal: speedup above 1)')
   for (const c of reduction) {
     console.log(`  ${c.name.padEnd(48)} N=${c.processes}  ${f(c.representatives).padStart(9)} representatives for ${f(c.orbitTotal)} of ${f(c.states)} states  ${c.reducedSeconds.toFixed(2)} s against ${c.unreducedSeconds.toFixed(2)} s = ${c.speedup.toFixed(2)}x`)
+  }
+  console.log('Parallel exploration (states per second; goal: two workers at least 1.6x one)')
+  for (const c of parallel) {
+    console.log(`  ${c.name.padEnd(48)} N=${c.processes}  ${f(c.states).padStart(9)} states  sequential ${c.sequentialSeconds.toFixed(2)} s  (${c.cores} cores, load ${c.loadAverage.map((x) => x.toFixed(1)).join(' ')} at ${c.measuredAt})`)
+    for (const r of c.runs) console.log(`    ${String(r.workers).padStart(3)} worker${r.workers === 1 ? ' ' : 's'}  ${r.seconds.toFixed(2)} s  ${f(r.statesPerSecond).padStart(10)} states/s  ${r.speedup.toFixed(2)}x one worker  ${r.overSequential.toFixed(2)}x sequential`)
   }
   const pc = parse.cases[0]
   console.log('Parse and check')

@@ -82,10 +82,11 @@ export const C = {
   GEN: 0, PHASE: 1, DONE: 2, NEXT: 3, RESERVE: 4, HALT: 5, OVERFLOW: 6, FAULT: 7, STOPREQ: 8,
   A: 10, B: 11, SIZE: 12, MASK: 13, MAXPEND: 14, ROOM: 15, JOBLEN: 16, BLOCK: 17, TLEN: 18,
   CLEAR_TO: 19, STAGE_FROM: 20, STAGE_TO: 21, ARENA_FROM: 22, ARENA_TO: 23, WORKERS: 24, READY: 25,
+  BAR: 26, BARGEN: 27, SKIP: 28, FRESH: 29, ARENACAP: 30,
   TRANS: 32, PUB: 32 + MAX_POOL, WIDEST: 32 + 2 * MAX_POOL,
 } as const
 const CTRL_WORDS = 32 + 3 * MAX_POOL
-export const PHASE = { JOB: 1, CLEAR: 2, REHASH: 3, EXPAND: 4, COUNT: 5, ASSIGN: 6, QUIT: 7 } as const
+export const PHASE = { JOB: 1, CLEAR: 2, REHASH: 3, LEVEL: 4, QUIT: 7 } as const
 /** Sources per block of work. */
 const BLOCK = 32
 
@@ -204,7 +205,7 @@ export function exploreParallel(inst: Instance, opts: ExploreOptions, job: Paral
         if (now - lastReport >= 100) {
           lastReport = now
           const seconds = (now - t0) / 1000
-          const states = size + (kind === PHASE.EXPAND ? Math.max(0, Atomics.load(ctrl, C.RESERVE)) : 0)
+          const states = size + (kind === PHASE.LEVEL ? Math.max(0, Atomics.load(ctrl, C.RESERVE)) : 0)
           opts.onProgress({ states, transitions, statesPerSecond: seconds > 0 ? states / seconds : 0, seconds })
         }
       }
@@ -227,9 +228,7 @@ export function exploreParallel(inst: Instance, opts: ExploreOptions, job: Paral
     switch (kind) {
       case PHASE.CLEAR: clearPhase(localViews); break
       case PHASE.REHASH: rehashPhase(localViews, W); break
-      case PHASE.EXPAND: expandPhase(localViews, 0, localJob, localState); break
-      case PHASE.COUNT: countPhase(localViews, localState); break
-      case PHASE.ASSIGN: assignPhase(localViews, localState); break
+      case PHASE.LEVEL: levelPhase(localViews, 0, 1, localJob, localState, true); break
     }
     if (!stopped && opts.shouldStop && opts.shouldStop()) stopped = true
   }
@@ -257,6 +256,7 @@ export function exploreParallel(inst: Instance, opts: ExploreOptions, job: Paral
     const arenaTo = Math.min(arenaWords, (buf.arena as Grow).maxByteLength / 4)
     if (!ensure(buf.table, len * 4) || !ensure(buf.stage, stageTo * 4) || !ensure(buf.arena, arenaTo * 4)) return false
     // Memory is touched here, by every worker, before the search needs it: page faults serialize.
+    if (len <= T && touchedStage >= stageTo && touchedArena >= arenaTo) return true
     ctrl[C.CLEAR_TO] = len > T ? len : 0
     ctrl[C.STAGE_FROM] = Math.min(touchedStage, stageTo); ctrl[C.STAGE_TO] = stageTo
     ctrl[C.ARENA_FROM] = Math.min(touchedArena, arenaTo); ctrl[C.ARENA_TO] = arenaTo
@@ -288,7 +288,8 @@ export function exploreParallel(inst: Instance, opts: ExploreOptions, job: Paral
     const reserved = Math.min(Math.max(0, Atomics.load(ctrl, C.RESERVE)), ctrl[C.MAXPEND])
     for (let p = 0; p < reserved; p++) {
       const s = slotOf[p]
-      if (s >= 0 && table[s] === -(p + 1)) table[s] = 0
+      // Published states only (others keep -1); assigned ones too, if the level was numbered.
+      if (s >= 0) table[s] = 0
     }
     Atomics.store(ctrl, C.RESERVE, 0)
   }
@@ -326,9 +327,12 @@ export function exploreParallel(inst: Instance, opts: ExploreOptions, job: Paral
         if (!ensure(buf.stage, pend * W * 4) || !ensure(buf.minSrc, pend * 4) || !ensure(buf.slotOf, pend * 4)) return handover()
       }
       if (!ensure(buf.blocks, (Math.ceil(frontier / BLOCK) + 1) * 4)) return handover()
+      // Room in the arena for every state this level may add, as far as the buffer allows.
+      ensure(buf.arena, Math.min((buf.arena as Grow).maxByteLength, (size + pend) * W * 4))
+      ctrl[C.ARENACAP] = Math.floor(buf.arena.byteLength / 4 / W)
       ctrl[C.A] = a; ctrl[C.B] = b; ctrl[C.SIZE] = size; ctrl[C.MAXPEND] = pend; ctrl[C.ROOM] = room(); ctrl[C.BLOCK] = BLOCK
-      ctrl[C.HALT] = 0; ctrl[C.OVERFLOW] = 0; ctrl[C.RESERVE] = 0
-      phase(PHASE.EXPAND)
+      ctrl[C.HALT] = 0; ctrl[C.OVERFLOW] = 0; ctrl[C.RESERVE] = 0; ctrl[C.SKIP] = 0; ctrl[C.BAR] = 0
+      phase(PHASE.LEVEL)
       if (stopped) { discard(); return finish(false) }
       if (ctrl[C.OVERFLOW] !== 0) {
         const reserved = Atomics.load(ctrl, C.RESERVE)
@@ -340,27 +344,12 @@ export function exploreParallel(inst: Instance, opts: ExploreOptions, job: Paral
         redo = true
         continue
       }
-      if (ctrl[C.HALT] !== 0) { discard(); return handover() }
+      // An invariant failed, a model error, the state limit, or lists as wide as the room.
+      if (ctrl[C.SKIP] !== 0) { discard(); return handover() }
     }
-    let fresh = 0
+    const fresh = ctrl[C.FRESH]
     let levelTransitions = 0
-    let widest = 0
-    for (let w = 0; w < P; w++) {
-      fresh += ctrl[C.PUB + w]
-      levelTransitions += ctrl[C.TRANS + w] >>> 0
-      widest = Math.max(widest, ctrl[C.WIDEST + w])
-    }
-    // reach.ts cuts outcome lists at the room left (it shrinks during a level) and completes them
-    // lazily, which changes their order: where that could happen, the level is redone there.
-    if (size + fresh > limit || widest >= limit - (size + fresh)) { discard(); return handover() }
-    phase(PHASE.COUNT)
-    const nb = Math.ceil(frontier / BLOCK)
-    const blocks = i32(buf.blocks)
-    let base = size
-    for (let k = 0; k < nb; k++) { const c = blocks[k]; blocks[k] = base; base += c }
-    if (base !== size + fresh) throw new Error(`internal error: the parallel search numbered ${base - size} of ${fresh} new states`)
-    if (!ensure(buf.arena, (size + fresh) * W * 4)) { discard(); return handover() }
-    phase(PHASE.ASSIGN)
+    for (let w = 0; w < P; w++) levelTransitions += ctrl[C.TRANS + w] >>> 0
     Atomics.store(ctrl, C.RESERVE, 0)
     transitions += levelTransitions
     ratio = Math.max(0.25, fresh / frontier)
@@ -440,9 +429,7 @@ export function serveExploration(buffers: SharedBuffers, index: number, compile:
         }
         case PHASE.CLEAR: clearPhase(v); break
         case PHASE.REHASH: rehashPhase(v, job!.inst.words); break
-        case PHASE.EXPAND: expandPhase(v, index, job!, state!); break
-        case PHASE.COUNT: countPhase(v, state!); break
-        case PHASE.ASSIGN: assignPhase(v, state!); break
+        case PHASE.LEVEL: levelPhase(v, index, ctrl[C.WORKERS], job!, state!); break
       }
     } catch (e) {
       reportFault(buffers, index, e)
@@ -545,6 +532,76 @@ class Seen {
     }
     return true
   }
+}
+
+/**
+ * Waits until all `P` workers arrive; the last one runs `last` first (a sense-reversing barrier
+ * among the workers, so a level costs one round trip to the coordinator, not three).
+ */
+function barrier(ctrl: Int32Array, P: number, last: () => void): void {
+  const g = Atomics.load(ctrl, C.BARGEN)
+  if (Atomics.add(ctrl, C.BAR, 1) + 1 >= P) {
+    try { last() } finally {
+      Atomics.store(ctrl, C.BAR, 0)
+      Atomics.add(ctrl, C.BARGEN, 1)
+      Atomics.notify(ctrl, C.BARGEN)
+    }
+    return
+  }
+  while (Atomics.load(ctrl, C.BARGEN) === g) Atomics.wait(ctrl, C.BARGEN, g)
+}
+
+/**
+ * One level: EXPAND, then (the last worker decides whether the level stands) COUNT, then (the
+ * last worker computes the blocks' first indices) ASSIGN. A worker that throws still takes part
+ * in both barriers, so the others are never left waiting; its fault skips the rest.
+ */
+function levelPhase(v: WorkerViews, index: number, P: number, job: CompiledJob, st: LevelState, local = false): void {
+  const ctrl = v.ctrl
+  let fault: unknown = null
+  // On the coordinator's own thread (no other worker to release), a failure is thrown as it is.
+  if (local) expandPhase(v, index, job, st)
+  else try { expandPhase(v, index, job, st) } catch (e) { fault = e; reportFaultOn(v, index, e) }
+  barrier(ctrl, P, () => {
+    let fresh = 0
+    let widest = 0
+    for (let w = 0; w < P; w++) {
+      fresh += ctrl[C.PUB + w]
+      widest = Math.max(widest, ctrl[C.WIDEST + w])
+    }
+    ctrl[C.FRESH] = fresh
+    const room = ctrl[C.ROOM]
+    // reach.ts cuts outcome lists at the room left (it shrinks during a level) and completes them
+    // lazily, which changes their order: where that could happen, the level is redone there.
+    const stands = ctrl[C.HALT] === 0 && ctrl[C.OVERFLOW] === 0 && ctrl[C.STOPREQ] === 0 && ctrl[C.FAULT] === 0 &&
+      fresh <= room && widest < room - fresh && ctrl[C.SIZE] + fresh <= ctrl[C.ARENACAP]
+    ctrl[C.SKIP] = stands ? 0 : 1
+  })
+  if (ctrl[C.SKIP] !== 0) return
+  try { countPhase(v, st) } catch (e) { fault = e; reportFaultOn(v, index, e) }
+  barrier(ctrl, P, () => {
+    if (ctrl[C.FAULT] !== 0) { ctrl[C.SKIP] = 1; return }
+    const blocks = i32(v.blocks)
+    const nb = Math.ceil((ctrl[C.B] - ctrl[C.A]) / ctrl[C.BLOCK])
+    const size = ctrl[C.SIZE]
+    let base = size
+    for (let k = 0; k < nb; k++) { const c = blocks[k]; blocks[k] = base; base += c }
+    if (base !== size + ctrl[C.FRESH]) {
+      reportFaultOn(v, index, new Error(`internal error: the parallel search numbered ${base - size} of ${ctrl[C.FRESH]} new states`))
+      ctrl[C.SKIP] = 1
+    }
+  })
+  if (ctrl[C.SKIP] !== 0 || fault) return
+  assignPhase(v, st)
+}
+
+function reportFaultOn(v: WorkerViews, index: number, e: unknown): void {
+  const msg = new TextEncoder().encode(e instanceof Error ? e.message : String(e)).slice(0, v.err.length - 1)
+  if (Atomics.compareExchange(v.ctrl, C.FAULT, 0, index + 1) === 0) {
+    v.err.fill(0)
+    v.err.set(msg)
+  }
+  Atomics.store(v.ctrl, C.HALT, 1)
 }
 
 function expandPhase(v: WorkerViews, index: number, job: CompiledJob, st: LevelState): void {

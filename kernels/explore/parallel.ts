@@ -184,6 +184,22 @@ export function exploreParallel(inst: Instance, opts: ExploreOptions, job: Paral
   let lastReport = t0
   let stopped = false
   let transitions = 0
+  /** Stop requests and progress (at most every 100 ms). */
+  const poll = (kind: number): void => {
+    if (!stopped && opts.shouldStop && opts.shouldStop()) {
+      stopped = true
+      Atomics.store(ctrl, C.STOPREQ, 1)
+    }
+    if (opts.onProgress) {
+      const now = performance.now()
+      if (now - lastReport >= 100) {
+        lastReport = now
+        const seconds = (now - t0) / 1000
+        const states = size + (kind === PHASE.LEVEL ? Math.max(0, Atomics.load(ctrl, C.RESERVE)) : 0)
+        opts.onProgress({ states, transitions, statesPerSecond: seconds > 0 ? states / seconds : 0, seconds })
+      }
+    }
+  }
   /** Runs one phase on every worker; polls stop requests and progress while it waits. */
   const phase = (kind: number): void => {
     if (!pooled) return runLocal(kind)
@@ -196,19 +212,7 @@ export function exploreParallel(inst: Instance, opts: ExploreOptions, job: Paral
       const d = Atomics.load(ctrl, C.DONE)
       if (d >= P) break
       Atomics.wait(ctrl, C.DONE, d, 50)
-      if (!stopped && opts.shouldStop && opts.shouldStop()) {
-        stopped = true
-        Atomics.store(ctrl, C.STOPREQ, 1)
-      }
-      if (opts.onProgress) {
-        const now = performance.now()
-        if (now - lastReport >= 100) {
-          lastReport = now
-          const seconds = (now - t0) / 1000
-          const states = size + (kind === PHASE.LEVEL ? Math.max(0, Atomics.load(ctrl, C.RESERVE)) : 0)
-          opts.onProgress({ states, transitions, statesPerSecond: seconds > 0 ? states / seconds : 0, seconds })
-        }
-      }
+      poll(kind)
     }
     const f = Atomics.load(ctrl, C.FAULT)
     if (f !== 0) {
@@ -230,7 +234,7 @@ export function exploreParallel(inst: Instance, opts: ExploreOptions, job: Paral
       case PHASE.REHASH: rehashPhase(localViews, W); break
       case PHASE.LEVEL: levelPhase(localViews, 0, 1, localJob, localState, true); break
     }
-    if (!stopped && opts.shouldStop && opts.shouldStop()) stopped = true
+    poll(kind)
   }
   /** Hands the search to the pool: each worker compiles its own instance and invariant from plain data. */
   const startPool = (): boolean => {

@@ -16,23 +16,25 @@ export function cores(): number {
   return availableParallelism()
 }
 
-/** The pool of n workers (made on first use, then kept; its threads start on first `start`). */
+/** The pool of n workers (made on first use, then kept; `start` waits until its threads are up). */
 export function nodePool(n: number): ExplorePool {
   const known = pools.get(n)
   if (known) return known
   const buffers = createSharedBuffers()
   const ctrl = new Int32Array(buffers.ctrl)
   const workers: Worker[] = []
+  // The threads load the kernel while the first levels run here; `start` waits for them.
+  for (let index = 0; index < n; index++) {
+    const w = new Worker(new URL('./parallel-node.mjs', import.meta.url), { workerData: { buffers, index, readyWord: READY } })
+    // Threads do not keep Node alive; they are ended with the process.
+    w.unref()
+    workers.push(w)
+  }
+  let started = false
   const pool: NodePool = {
     size: n, buffers, workers,
     start() {
-      if (workers.length > 0) return
-      for (let index = 0; index < n; index++) {
-        const w = new Worker(new URL('./parallel-node.mjs', import.meta.url), { workerData: { buffers, index, readyWord: READY } })
-        // Threads do not keep Node alive; they are ended with the process.
-        w.unref()
-        workers.push(w)
-      }
+      if (started) return
       // Workers start on their own threads, so this thread may block until they are all up.
       const deadline = Date.now() + 120_000
       for (;;) {
@@ -41,6 +43,7 @@ export function nodePool(n: number): ExplorePool {
         if (Date.now() > deadline) throw new Error(`parallel exploration workers did not start (${ready} of ${n} within two minutes)`)
         Atomics.wait(ctrl, READY, ready, 1000)
       }
+      started = true
     },
   }
   pools.set(n, pool)

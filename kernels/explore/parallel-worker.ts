@@ -12,7 +12,7 @@ export function compileJob(job: ParallelJob): CompiledJob {
   return { inst, invariant, fault: job.fault }
 }
 
-/** Serves explorations on `buffers` as worker `index` (blocks this thread). */
-export function runExploreWorker(buffers: SharedBuffers, index: number): void {
-  serveExploration(buffers, index, compileJob)
+/** Serves explorations on `buffers` as worker `index` (blocks this thread); `refresh` takes replaced buffers. */
+export function runExploreWorker(buffers: SharedBuffers, index: number, refresh?: () => void): void {
+  serveExploration(buffers, index, compileJob, refresh)
 }

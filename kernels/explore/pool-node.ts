@@ -2,8 +2,8 @@
 // and the benchmark. Node only: the browser bundle never imports this file (the workbench has its
 // own pool over Web Workers).
 import { availableParallelism } from 'node:os'
-import { Worker } from 'node:worker_threads'
-import { C, PHASE, createSharedBuffers, setPoolProvider, type ExplorePool } from './parallel'
+import { MessageChannel, Worker, type MessagePort } from 'node:worker_threads'
+import { C, NODE_CAPS, PHASE, createSharedBuffers, setPoolProvider, type ExplorePool } from './parallel'
 
 /** A ctrl word past the phase protocol's, counting workers that have started. */
 const READY = C.READY
@@ -20,19 +20,30 @@ export function cores(): number {
 export function nodePool(n: number): ExplorePool {
   const known = pools.get(n)
   if (known) return known
-  const buffers = createSharedBuffers()
+  // Plain buffers, replaced to grow: each worker takes the new ones from its port between phases.
+  const buffers = createSharedBuffers(NODE_CAPS, false)
   const ctrl = new Int32Array(buffers.ctrl)
   const workers: Worker[] = []
+  const ports: MessagePort[] = []
   // The threads load the kernel while the first levels run here; `start` waits for them.
   for (let index = 0; index < n; index++) {
-    const w = new Worker(new URL('./parallel-node.mjs', import.meta.url), { workerData: { buffers, index, readyWord: READY } })
+    const { port1, port2 } = new MessageChannel()
+    ports.push(port1)
+    const w = new Worker(new URL('./parallel-node.mjs', import.meta.url), { workerData: { buffers, index, readyWord: READY, epochWord: C.EPOCH, port: port2 }, transferList: [port2] })
     // Threads do not keep Node alive; they are ended with the process.
     w.unref()
     workers.push(w)
   }
   let started = false
+  let epoch = 0
   const pool: NodePool = {
-    size: n, buffers, workers,
+    size: n, buffers, workers, caps: NODE_CAPS,
+    replace(name, sab) {
+      buffers[name] = sab
+      epoch++
+      for (const port of ports) port.postMessage({ name, sab, epoch })
+      Atomics.store(ctrl, C.EPOCH, epoch)
+    },
     start() {
       if (started) return
       // Workers start on their own threads, so this thread may block until they are all up.

@@ -20,7 +20,8 @@ async function startPool(): Promise<ExplorePool | null> {
   const n = Math.min(16, navigator.hardwareConcurrency || 1)
   if (n < 2 || typeof SharedArrayBuffer === 'undefined' || !globalThis.crossOriginIsolated || typeof Worker === 'undefined') return null
   // Smaller reservations than Node's: a browser tab's address space is shared with the page.
-  const buffers = createSharedBuffers({ arena: 2 ** 30, table: 2 ** 28, stage: 2 ** 30, perState: 2 ** 27, job: 2 ** 24 })
+  const caps = { arena: 2 ** 30, table: 2 ** 28, stage: 2 ** 30, perState: 2 ** 27, job: 2 ** 24 }
+  const buffers = createSharedBuffers(caps)
   const workers: Worker[] = []
   try {
     await Promise.all(Array.from({ length: n }, (_, index) => new Promise<void>((resolve, reject) => {
@@ -35,7 +36,7 @@ async function startPool(): Promise<ExplorePool | null> {
     for (const w of workers) w.terminate()
     return null
   }
-  const started: ExplorePool = { size: n, buffers, start() {} }
+  const started: ExplorePool = { size: n, buffers, caps, start() {} }
   setPoolProvider((k) => (k === n ? started : null))
   return started
 }

@@ -120,6 +120,52 @@ check beacons: bounded at N = 2
 \`\`\`
 `
 
+const pumps = `# Orchard pumps
+
+\`\`\`protocol
+protocol pumps {
+  const delay = 2
+  const patience = 2
+  const cap = 4
+  timing synchronous(delay: delay, idle: 1)
+  faults crash
+  message beat
+  state suspect[peer]: bool = false
+  state wait[peer]: 1..cap = patience
+  state quiet[peer]: 0..cap = 0
+  on beat from q {
+    quiet[q] := 0
+    if suspect[q] {
+      suspect[q] := false
+      wait[q] := min(wait[q] + 1, cap)
+    }
+  }
+  step {
+    broadcast beat
+    for q {
+      quiet[q] := min(quiet[q] + 1, cap)
+      if quiet[q] >= wait[q] { suspect[q] := true }
+    }
+  }
+}
+\`\`\`
+`
+
+describe('buffers that grow during a search', () => {
+  it('give the same search for 1, 2 and 3 workers (pumps at N = 3 within 40,000 states)', () => {
+    parallelTuning.minFrontier = 0
+    const p = protocolOf(pumps)
+    const constants = p.consts.map((c) => c.value)
+    const inst = compileInstance(p, 3, constants)
+    const limit = 40_000
+    const want = summary(explore(inst, { limit }), inst.words)
+    expect(want.limitHit).toBe(true)
+    // Far beyond the 64 KiB the buffers start with, so the table, arena and staging were replaced.
+    expect(want.states * inst.words * 4).toBeGreaterThan(4 * 65536)
+    for (const w of WORKERS) expect(summary(exploreParallel(inst, { limit }, { protocol: p, n: 3, constants, invariant: null }, nodePool(w)), inst.words), `workers ${w}`).toEqual(want)
+  })
+})
+
 describe('a worker that fails', () => {
   it('makes the row error with its message, and the pool works afterwards', () => {
     parallelTuning.minFrontier = 0

@@ -1,7 +1,7 @@
 // Parallel exploration (kernels/explore/parallel.ts) on a heartbeat detector of our own (orchard
 // pumps, synchronous, crash faults) at N = 3, with its invariant: the sequential explorer as the
-// in-process baseline, then 1..cores workers. Each setting is run twice and the faster run kept (the
-// machine is shared); every run must give the baseline's states and transitions.
+// in-process baseline, then 1..cores workers. Each setting is warmed up once, then run twice and the
+// faster run kept (the machine is shared); every run must give the baseline's states and transitions.
 import { loadavg } from 'node:os'
 import { analyzeNotebook } from '../kernels/language/analyze'
 import { exploreParallel, type ParallelJob } from '../kernels/explore/parallel'
@@ -93,6 +93,7 @@ function measure(name: string, timing: string, n: number, maxWorkers: number): P
   for (let w = 1; w <= maxWorkers; w++) {
     const pool = nodePool(w)
     pool.start()
+    exploreParallel(inst, { invariant }, job, pool) // warm-up: each worker compiles its hot loops once
     let best = Infinity
     for (let k = 0; k < 2; k++) {
       const r = exploreParallel(inst, { invariant }, job, pool)

@@ -88,7 +88,7 @@ export interface ExploreResult {
  * Distinct targets of one source: an open-addressing set of store indices whose slots are
  * invalidated by bumping a stamp, so starting a new source costs nothing.
  */
-export class TargetSet {
+class TargetSet {
   private keys = new Int32Array(64)
   private stamps = new Int32Array(64)
   private list: number[] = []

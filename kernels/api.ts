@@ -21,3 +21,8 @@ export type { PrintedProperty } from './language/formula-print'
 export { sha256Hex } from './base/hash'
 export { canonicalJsonPretty } from './base/canonical'
 export { buildRecord } from './record/record'
+// The workbench's parallel exploration pool (Web Workers over SharedArrayBuffer): the kernel
+// worker starts and registers it, each exploration worker serves the parallel search.
+export { createSharedBuffers, setPoolProvider } from './explore/parallel'
+export type { ExplorePool, SharedBuffers } from './explore/parallel'
+export { runExploreWorker } from './explore/parallel-worker'

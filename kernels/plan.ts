@@ -55,6 +55,13 @@ export interface RunOptions {
    * the runtime's own allocation failures stop a search that way.
    */
   memoryBudget?: number
+  /**
+   * Workers for the invariant route's exploration (explore/parallel.ts); 1 or absent: this thread
+   * only. Results are the same for any number. Used where a pool provider is registered.
+   */
+  workers?: number
+  /** Test hook: parallel worker `worker` (0-based) throws after expanding `after` sources. */
+  workerFault?: { worker: number; after: number }
 }
 
 /** The rows of one property of one check: sizes (outer) times constant settings (inner, last sweep item fastest). */

@@ -17,6 +17,8 @@ import { fromModel, type Ltl } from './logic/ltl'
 import { statePredicate } from './logic/predicate'
 import { checkLtl, negationAutomaton, type System } from './logic/product'
 import type { Automaton } from './logic/automaton'
+import { exploreWith, type ParallelJob } from './explore/parallel'
+import { rowInvariant } from './explore/invariant'
 import { MAX_TEMPORAL_PROCESSES } from './language/limits'
 import { ModelSetupError, PropertyFault } from './model/errors'
 import { compileInstance, type Instance } from './model/instance'
@@ -180,6 +182,11 @@ interface Route {
   t0: number
   /** The row's cutoff decision (temporal rows above the cutoff size are searched on the quotient first). */
   cutoff: CutoffInfo
+  /** What a parallel exploration's workers compile the instance and the invariant from. */
+  protocol: ProtocolModel
+  constants: number[]
+  /** The `always P` body, or null for a temporal property. */
+  inv: Formula | null
 }
 
 /**
@@ -196,9 +203,9 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
   const route: Route = {
     row, prop, inst, limit: check.limit ?? DEFAULT_LIMIT, terms: atomsOf(prop.formula), chosen: cutoff.applies ? [all[0]] : all, opts,
     progress: opts.onProgress ? (p) => opts.onProgress!({ check: row.check, property: prop.name, processes: n, ...p }) : undefined,
-    t0, cutoff,
+    t0, cutoff, protocol, constants, inv: invariantBody(prop.formula),
   }
-  const inv = invariantBody(prop.formula)
+  const inv = route.inv
   if (!inv) {
     if (n > MAX_TEMPORAL_PROCESSES) {
       throw new ModelSetupError(`temporal properties are checked on at most ${MAX_TEMPORAL_PROCESSES} processes (their fairness conditions must fit the temporal product's 31 marks), not ${n} (line ${prop.span.line}, column ${prop.span.column})`, prop.span)
@@ -218,18 +225,8 @@ function runInstance(row: CheckRow, protocol: ProtocolModel, prop: PropertyModel
 
 /** The invariant's test on a state, and which assignment failed last (`failed`, -1 while none). */
 function invariantTest(route: Route, inv: Formula): { test: (w: Uint32Array, o: number) => boolean; failed: () => number } {
-  const { inst, terms, chosen } = route
-  const predicates = chosen.map((a) => statePredicate(inv, (t) => compileTerm(inst, t, a)))
-  // A division in the property is evaluated in every atom on every state, whatever the connectives
-  // around it, so that a division by zero is a model error (as in protocols) however it is guarded.
-  const dividing = terms.some(divides) ? chosen.map((a) => terms.map((t) => compileTerm(inst, t, a))) : null
-  let failed = -1
-  const test = (w: Uint32Array, o: number) => {
-    if (dividing) for (const atoms of dividing) for (const t of atoms) t(w, o)
-    for (let k = 0; k < predicates.length; k++) if (!predicates[k](w, o)) { failed = k; return false }
-    return true
-  }
-  return { test, failed: () => failed }
+  const { invariant, failed } = rowInvariant(route.inst, inv, route.terms, route.chosen)
+  return { test: invariant, failed }
 }
 
 /** Why an exploration did not finish, for the note of an `inconclusive` row. */
@@ -272,7 +269,11 @@ function runReducedInvariant(route: Route, inv: Formula): boolean {
  */
 function exploreRow(route: Route, search: 'invariant' | 'ltl', invariant?: (w: Uint32Array, o: number) => boolean, edges?: FairGraphRecorder): { r: ExploreResult; decided: boolean } {
   const { row, prop, inst, limit, opts } = route
-  const r = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: route.progress, invariant, edges, memoryBudget: opts.memoryBudget })
+  const eo = { limit, shouldStop: opts.shouldStop, onProgress: route.progress, invariant, edges, memoryBudget: opts.memoryBudget }
+  // Invariant rows run on `opts.workers` workers where a pool is available (explore/parallel.ts).
+  const r = search === 'invariant' && route.inv
+    ? exploreWith(inst, eo, opts.workers, { protocol: route.protocol, n: inst.n, constants: route.constants, invariant: { formula: route.inv, terms: route.terms, chosen: route.chosen }, fault: opts.workerFault })
+    : explore(inst, eo)
   row.states = r.states
   row.transitions = r.transitions
   row.method = 'exploration'

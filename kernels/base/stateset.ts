@@ -66,6 +66,20 @@ export class StateStore {
     this.mask = t - 1
   }
 
+  /**
+   * A set over states already laid out: `arena` holds `size` states, `table` (a power-of-two
+   * length, at most 3/4 full) their slots as this class places them (index + 1, linear probing
+   * from `hashWords & (length - 1)`), for instance as the parallel explorer leaves them.
+   */
+  static adopt(words: number, arena: Uint32Array, table: Int32Array, size: number): StateStore {
+    const s = new StateStore(words, 16)
+    s.arena = arena
+    s.table = table
+    s.mask = table.length - 1
+    s.size = size
+    return s
+  }
+
   /** The arena: state k occupies data[k*words .. (k+1)*words). */
   get data(): Uint32Array {
     return this.arena

@@ -70,6 +70,13 @@ export interface ExploreOptions {
    * states found so far. Default: no budget of its own (allocation failures are still caught).
    */
   memoryBudget?: number
+  /**
+   * Go on from a search done elsewhere (the parallel explorer, parallel.ts): `store` holds levels
+   * 0..L numbered as this search numbers them, `levelStart` the starts of those levels (the last
+   * is `head`, where level L starts) and `transitions` those of levels before L. Initial states
+   * are not read again.
+   */
+  resume?: { store: StateStore; levelStart: number[]; head: number; transitions: number }
 }
 
 export interface ExploreResult {
@@ -145,11 +152,12 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
   const W = inst.words
   const limit = opts.limit ?? Infinity
   const invariant = opts.invariant
-  const store = new StateStore(W, 1024)
+  const resume = opts.resume
+  const store = resume ? resume.store : new StateStore(W, 1024)
   const budget = opts.memoryBudget ?? Infinity
   let memoryHit = false
-  const levelStart: number[] = [0]
-  let transitions = 0
+  const levelStart: number[] = resume ? resume.levelStart.slice() : [0]
+  let transitions = resume ? resume.transitions : 0
   let halted = false
   let limitHit = false
   let stopped = false
@@ -161,7 +169,7 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
   const rec = opts.edges
   if (rec && canon && !rec.reduced) throw new Error('internal error: edges are recorded between real states, not representatives')
   const rep = new Uint32Array(W)
-  let init = inst.initialStates()
+  let init = resume ? new Uint32Array(0) : inst.initialStates()
   if (canon) {
     const reps = new Uint32Array(init.length)
     for (let off = 0; off < init.length; off += W) { canon(init, off, rep); reps.set(rep, off) }
@@ -255,7 +263,7 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
   // One bound object for the whole search (no allocation per state); see expansion.ts.
   const bound: ExpansionBound = { room: limit, stop: opts.shouldStop, stopAtError: !opts.continueOnError, interrupted: false }
   const src = new Uint32Array(W)
-  let head = 0
+  let head = resume ? resume.head : 0
   let levelEnd = store.size
   let lastReport = t0
   let sinceCheck = 0

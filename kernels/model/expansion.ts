@@ -12,4 +12,10 @@ export interface ExpansionBound {
   stop?: () => boolean
   /** Set by `successors` when it abandoned the expansion because `stop` said so. */
   interrupted: boolean
+  /**
+   * Raised by `successors` to the longest outcome list of one process it used (cut lists count
+   * their cut length). The parallel explorer reads it: while every list is shorter than the room,
+   * no list is cut and the order of successors does not depend on the room or on the memo.
+   */
+  widest?: number
 }

@@ -237,6 +237,7 @@ export class TickEngine {
     if (known >= 0) {
       this.starts[slot] = pool.start(known)
       this.counts[slot] = pool.count(known)
+      if (this.bound && this.counts[slot] > (this.bound.widest ?? 0)) this.bound.widest = this.counts[slot]
       return pool.error(known)
     }
     const start = pool.length
@@ -244,6 +245,7 @@ export class TickEngine {
     const cut = outcomes.lastCut
     this.starts[slot] = start
     this.counts[slot] = pool.length - start
+    if (this.bound && this.counts[slot] > (this.bound.widest ?? 0)) this.bound.widest = this.counts[slot]
     if (cut || this.bound?.interrupted) {
       this.cut = this.cut || cut
       return err

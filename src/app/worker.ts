@@ -3,9 +3,44 @@
 // does not ship the model back and forth), rows, diagnostics, digests and records come out.
 import * as Comlink from 'comlink'
 import {
-  analyzeNotebook, buildRecord, canonicalJsonPretty, planRows, runNotebook, runPlannedRow, sha256Hex,
-  type CheckRow, type NotebookModel, type Progress, type RowPlan,
+  analyzeNotebook, buildRecord, canonicalJsonPretty, createSharedBuffers, planRows, runNotebook, runPlannedRow, setPoolProvider,
+  sha256Hex, type CheckRow, type ExplorePool, type NotebookModel, type Progress, type RowPlan,
 } from '../../kernels/api'
+
+/**
+ * The pool of parallel exploration workers (kernels/explore/parallel.ts): one Web Worker per core,
+ * started ahead of the first run (nested workers may not start while this worker blocks) where
+ * the page is cross-origin isolated; elsewhere rows are explored on this worker alone.
+ */
+let pool: Promise<ExplorePool | null> | null = null
+function explorePool(): Promise<ExplorePool | null> {
+  pool ??= startPool().catch(() => null)
+  return pool
+}
+async function startPool(): Promise<ExplorePool | null> {
+  const n = Math.min(16, navigator.hardwareConcurrency || 1)
+  if (n < 2 || typeof SharedArrayBuffer === 'undefined' || !globalThis.crossOriginIsolated || typeof Worker === 'undefined') return null
+  // Smaller reservations than Node's: a browser tab's address space is shared with the page.
+  const caps = { arena: 2 ** 30, table: 2 ** 28, stage: 2 ** 30, perState: 2 ** 27, job: 2 ** 24 }
+  const buffers = createSharedBuffers(caps)
+  const workers: Worker[] = []
+  try {
+    await Promise.all(Array.from({ length: n }, (_, index) => new Promise<void>((resolve, reject) => {
+      const w = new Worker(new URL('./explore-worker.ts', import.meta.url), { type: 'module', name: `twofold-explore-${index + 1}` })
+      workers.push(w)
+      const timer = setTimeout(() => reject(new Error('an exploration worker did not start')), 20_000)
+      w.onmessage = () => { clearTimeout(timer); resolve() }
+      w.onerror = (e) => { clearTimeout(timer); reject(new Error(e.message)) }
+      w.postMessage({ buffers, index })
+    })))
+  } catch {
+    for (const w of workers) w.terminate()
+    return null
+  }
+  const started: ExplorePool = { size: n, buffers, caps, start() {} }
+  setPoolProvider((k) => (k === n ? started : null))
+  return started
+}
 
 let lastText: string | null = null
 let lastModel: NotebookModel | null = null
@@ -40,11 +75,14 @@ export const kernelApi = {
    * Runs one planned row. `stop`, when given, is a shared flag: the page sets element 0 to 1 to
    * stop the row (it then comes back inconclusive), because a busy worker cannot read messages.
    */
-  run(text: string, plan: RowPlan, onProgress?: (p: Progress) => void, stop?: Int32Array): Promise<CheckRow> {
+  async run(text: string, plan: RowPlan, onProgress?: (p: Progress) => void, stop?: Int32Array): Promise<CheckRow> {
     // `by induction` rows load the solver into this worker on first use (runPlannedRow).
+    // Invariant rows explore on every core where the pool could start (same results as one).
+    const workers = (await explorePool())?.size
     return runPlannedRow(modelOf(text), plan, {
       onProgress: onProgress ? (p) => onProgress(p) : undefined,
       shouldStop: stop ? () => Atomics.load(stop, 0) === 1 : undefined,
+      workers,
     })
   },
   /**

@@ -1,5 +1,6 @@
 // `twofold check NOTEBOOK.md`: run every check of a notebook, print the report (table, JSON, JUnit or SARIF),
 // optionally write a verification record, and answer with the exit code CI acts on.
+import { cores, useNodePools } from '../../kernels/explore/pool-node'
 import { canonicalJsonPretty } from '../../kernels/base/canonical'
 import type { RecordKernel } from '../../kernels/record/kernel'
 import { buildRecord } from '../../kernels/record/record'
@@ -50,10 +51,12 @@ export async function runCheck(io: CliIo, loadKernel: () => Promise<RecordKernel
   }
 
   const progress = progressLine(options.quiet ? { ...io, stderrIsTTY: false } : io)
-  // `workers` reaches the kernel as it grows parallel exploration; until then it is ignored there.
+  // Invariant rows explore on `--workers` worker threads (default: every core), the same results
+  // as one; the pool starts only when a search has a level wide enough to share.
+  useNodePools()
   const ctrlC = interruptOnCtrlC(io)
-  const run: RunOptions & { workers?: number } = {
-    only: flags.only, shard, workers: options.workers, onProgress: (p) => progress.report(p),
+  const run: RunOptions = {
+    only: flags.only, shard, workers: options.workers ?? cores(), onProgress: (p) => progress.report(p),
     shouldStop: ctrlC.requested, onWait: ctrlC.onWait,
   }
   let report

@@ -1,6 +1,7 @@
 // The options of `twofold check` around a run, against a scripted kernel that records what it was
 // asked: `--shard auto` and `--shards`, `--workers`, a notebook on standard input, `--quiet`,
 // colour (`--color`, NO_COLOR) and `--output` written atomically, never over the notebook.
+import { availableParallelism } from 'node:os'
 import { readFileSync, readdirSync, symlinkSync } from 'node:fs'
 import { join } from 'node:path'
 import { afterEach, beforeEach, describe, expect, it } from 'vitest'
@@ -77,6 +78,12 @@ describe('--workers', () => {
     const { kernel, seen } = recordingKernel()
     expect((await twofold(['check', 'harbour.md', '--workers', '4'], ws.dir, { kernel })).code).toBe(0)
     expect(seen.options?.workers).toBe(4)
+  })
+
+  it('defaults to the number of cores', async () => {
+    const { kernel, seen } = recordingKernel()
+    expect((await twofold(['check', 'harbour.md'], ws.dir, { kernel })).code).toBe(0)
+    expect(seen.options?.workers).toBe(availableParallelism())
   })
 
   it.each(['0', '257', 'many', '2.5'])('refuses --workers %s with one line', async (n) => {

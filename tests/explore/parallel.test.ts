@@ -1,0 +1,185 @@
+// The parallel explorer (kernels/explore/parallel.ts) against the sequential one (reach.ts), its
+// oracle here (itself compared with the reference interpreter in tests/differential): on generated
+// protocols, for 1, 2 and 3 workers, the same states in the same numbering, the same transitions,
+// outcome, model error and shortest trace; through the runner, the same rows (verdicts, counts,
+// counterexamples). A worker that throws makes the row `error`, never a partial verdict.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { parallelTuning, exploreParallel, setPoolProvider, type ParallelJob } from '../../kernels/explore/parallel'
+import { closeNodePools, nodePool, useNodePools } from '../../kernels/explore/pool-node'
+import { explore, type ExploreResult } from '../../kernels/explore/reach'
+import { analyzeNotebook } from '../../kernels/language/analyze'
+import type { ProtocolModel } from '../../kernels/language/model'
+import { compileInstance } from '../../kernels/model/instance'
+import { planRows, runRow } from '../../kernels/run'
+import type { CheckRow } from '../../kernels/result'
+import { generateNotebook, generateProperties } from '../reference/generate'
+
+const WORKERS = [1, 2, 3]
+const SEEDS = 40
+
+beforeAll(() => {
+  useNodePools()
+  for (const w of WORKERS) nodePool(w).start()
+})
+afterAll(async () => {
+  parallelTuning.minFrontier = 2048
+  setPoolProvider(null)
+  await closeNodePools()
+})
+
+/** What must be identical: counts, outcome, error, trace and the states in store order. */
+function summary(r: ExploreResult, words: number) {
+  return {
+    states: r.states, transitions: r.transitions, complete: r.complete, limitHit: r.limitHit, outcome: r.outcome,
+    error: r.error ? `${r.error.process} ${r.error.message}` : null, trace: r.trace,
+    store: Array.from(r.store.data.subarray(0, r.states * words)),
+  }
+}
+
+function protocolOf(text: string): ProtocolModel {
+  const nb = analyzeNotebook(text)
+  expect(nb.diagnostics.filter((d) => d.severity === 'error')).toEqual([])
+  return nb.protocols[0]
+}
+
+describe('parallel exploration equals sequential exploration', () => {
+  for (const minFrontier of [0, 16]) {
+    it(`generated protocols at N = 1, 2, 3 under a limit, for ${WORKERS.join(', ')} workers (levels of at least ${minFrontier} sources on the workers)`, () => {
+      parallelTuning.minFrontier = minFrontier
+      const seen = { complete: 0, limit: 0, modelError: 0 }
+      for (let seed = 1; seed <= SEEDS; seed++) {
+        const p = protocolOf(generateNotebook(seed))
+        const constants = p.consts.map((c) => c.value)
+        for (const n of [1, 2, 3]) {
+          let inst
+          try { inst = compileInstance(p, n, constants) } catch { continue }
+          const limit = 1500
+          const want = summary(explore(inst, { limit }), inst.words)
+          if (want.complete) seen.complete++
+          if (want.limitHit) seen.limit++
+          if (want.outcome === 'model-error') seen.modelError++
+          const job: ParallelJob = { protocol: p, n, constants, invariant: null }
+          for (const w of WORKERS) {
+            const got = summary(exploreParallel(inst, { limit }, job, nodePool(w)), inst.words)
+            expect(got, `seed ${seed} N=${n} workers ${w}`).toEqual(want)
+          }
+        }
+      }
+      // Every way a search ends was met: complete, the state limit, a model error.
+      expect(seen.complete).toBeGreaterThan(10)
+      expect(seen.limit).toBeGreaterThan(0)
+      expect(seen.modelError).toBeGreaterThan(0)
+    })
+  }
+
+  it('rows of generated invariants: the same verdicts, counts and counterexamples for 1, 2 and 3 workers', () => {
+    parallelTuning.minFrontier = 0
+    const strip = (r: CheckRow) => ({ ...r, seconds: 0 })
+    let invariantRows = 0
+    let violated = 0
+    for (let seed = 1; seed <= 2 * SEEDS; seed++) {
+      const text = generateNotebook(seed)
+      const nb = analyzeNotebook(text + '\n' + generateProperties(protocolOf(text), seed))
+      for (const plan of planRows(nb)) {
+        const one = runRow(nb, plan)
+        if (one.search !== 'invariant' || one.reducedStates !== undefined) continue
+        invariantRows++
+        if (one.verdict === 'violated') violated++
+        for (const w of [2, 3]) expect(strip(runRow(nb, plan, { workers: w })), `seed ${seed} row ${plan.row} workers ${w}`).toEqual(strip(one))
+      }
+    }
+    expect(invariantRows).toBeGreaterThan(25)
+    expect(violated).toBeGreaterThan(0)
+    expect(violated).toBeLessThan(invariantRows)
+  })
+})
+
+const beacons = `# Lighthouse beacons
+
+\`\`\`protocol
+protocol beacons {
+  timing asynchronous
+  faults crash
+  message flash(level: 0..2)
+  state level: 0..2 = 0
+  state heard[peer]: 0..2 = 0
+  on flash(v) from q { heard[q] := v }
+  step {
+    level := one of {0, 1, 2}
+    broadcast flash(level)
+  }
+}
+\`\`\`
+
+\`\`\`property
+property bounded = forall p, q: always (p.heard[q] <= 2)
+\`\`\`
+
+\`\`\`check
+check beacons: bounded at N = 2
+\`\`\`
+`
+
+const pumps = `# Orchard pumps
+
+\`\`\`protocol
+protocol pumps {
+  const delay = 2
+  const patience = 2
+  const cap = 4
+  timing synchronous(delay: delay, idle: 1)
+  faults crash
+  message beat
+  state suspect[peer]: bool = false
+  state wait[peer]: 1..cap = patience
+  state quiet[peer]: 0..cap = 0
+  on beat from q {
+    quiet[q] := 0
+    if suspect[q] {
+      suspect[q] := false
+      wait[q] := min(wait[q] + 1, cap)
+    }
+  }
+  step {
+    broadcast beat
+    for q {
+      quiet[q] := min(quiet[q] + 1, cap)
+      if quiet[q] >= wait[q] { suspect[q] := true }
+    }
+  }
+}
+\`\`\`
+`
+
+describe('buffers that grow during a search', () => {
+  it('give the same search for 1, 2 and 3 workers (pumps at N = 3 within 40,000 states)', () => {
+    parallelTuning.minFrontier = 0
+    const p = protocolOf(pumps)
+    const constants = p.consts.map((c) => c.value)
+    const inst = compileInstance(p, 3, constants)
+    const limit = 40_000
+    const want = summary(explore(inst, { limit }), inst.words)
+    expect(want.limitHit).toBe(true)
+    // Far beyond the 64 KiB the buffers start with, so the table, arena and staging were replaced.
+    expect(want.states * inst.words * 4).toBeGreaterThan(4 * 65536)
+    for (const w of WORKERS) expect(summary(exploreParallel(inst, { limit }, { protocol: p, n: 3, constants, invariant: null }, nodePool(w)), inst.words), `workers ${w}`).toEqual(want)
+  })
+})
+
+describe('a worker that fails', () => {
+  it('makes the row error with its message, and the pool works afterwards', () => {
+    parallelTuning.minFrontier = 0
+    const nb = analyzeNotebook(beacons)
+    expect(nb.diagnostics.filter((d) => d.severity === 'error')).toEqual([])
+    const [plan] = planRows(nb)
+    const ok = runRow(nb, plan)
+    expect(ok.verdict).toBe('holds')
+    expect(ok.states).toBeGreaterThan(100)
+    const bad = runRow(nb, plan, { workers: 2, workerFault: { worker: 1, after: 3 } })
+    expect(bad.verdict).toBe('error')
+    expect(bad.complete).toBe(false)
+    expect(bad.note).toContain('parallel exploration worker 2 failed: test fault')
+    const again = runRow(nb, plan, { workers: 2 })
+    expect({ ...again, seconds: 0 }).toEqual({ ...ok, seconds: 0 })
+  })
+})

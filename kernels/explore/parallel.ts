@@ -168,70 +168,172 @@ function faultMessage(err: Uint8Array): string {
 /** The parallel search on `pool` (any size, one worker included); see the file comment. */
 export function exploreParallel(inst: Instance, opts: ExploreOptions, job: ParallelJob, pool: ExplorePool): ExploreResult {
   const t0 = performance.now()
+  // Level 0 on this thread: the initial states, deduplicated and checked as explore() does; if
+  // anything stops the search there, explore() does it all (it costs one level).
+  const first = firstLevel(inst, opts)
+  if (!first) return explore(inst, opts)
+  const search = new ParallelSearch(inst, opts, job, pool, t0, first.size)
+  return search.run(first)
+}
+
+/** The initial states, deduplicated and checked as explore() does; null when anything stops the search there. */
+function firstLevel(inst: Instance, opts: ExploreOptions): StateStore | null {
   const W = inst.words
   const limit = opts.limit ?? Infinity
-  const buf = pool.buffers
-  const capOf = (name: BufferName): number => (name === 'minSrc' || name === 'slotOf' || name === 'blocks' ? pool.caps.perState : pool.caps[name])
+  const invariant = opts.invariant
+  const init = inst.initialStates()
+  const first = new StateStore(W, Math.max(16, init.length / W))
+  for (let off = 0; off < init.length; off += W) {
+    if (first.lookup(init, off) >= 0) continue
+    if (first.size >= limit) return null
+    first.insert(init, off)
+    if (invariant) {
+      let ok: boolean
+      try { ok = invariant(init, off) } catch (e) { if (e instanceof PropertyFault) return null; throw e }
+      if (!ok) return null
+    }
+  }
+  return first
+}
+
+/** The coordinator of one parallel search: the pool's buffers, the committed table, and the phases it runs. */
+class ParallelSearch {
+  private readonly W: number
+  private readonly limit: number
+  private readonly buf: SharedBuffers
+  private readonly ctrl: Int32Array
+  private readonly err: Uint8Array
+  /** Workers taking part: 1 (this thread) until a level is wide enough, then the pool's. */
+  private P = 1
+  private pooled = false
+  private T = 0
+  private lastReport: number
+  private stopped = false
+  private transitions = 0
+  private touchedStage = 0
+  private touchedArena = 0
+  private readonly levelStart: number[] = [0]
+  private a = 0
+  // This thread's own level record, for the levels it expands itself.
+  private readonly localJob: CompiledJob
+  private readonly localState: LevelState
+
+  constructor(
+    private readonly inst: Instance, private readonly opts: ExploreOptions, private readonly job: ParallelJob,
+    private readonly pool: ExplorePool, private readonly t0: number, private size: number,
+  ) {
+    this.W = inst.words
+    this.limit = opts.limit ?? Infinity
+    this.buf = pool.buffers
+    this.ctrl = new Int32Array(this.buf.ctrl)
+    this.err = new Uint8Array(this.buf.err)
+    this.lastReport = t0
+    this.localJob = { inst, invariant: opts.invariant }
+    this.localState = new LevelState(this.W)
+  }
+
+  /** Level after level from the first, on this thread until a level is wide enough, then on the pool. */
+  run(first: StateStore): ExploreResult {
+    const { W, buf, ctrl, pool, limit } = this
+    ctrl[C.STOPREQ] = 0
+    if (!this.grow('arena', this.size * W * 4)) return explore(this.inst, this.opts)
+    u32(buf.arena).set(first.data.subarray(0, this.size * W))
+    if (!this.setTable(tableFor(this.size * 4), this.size * 4 * W, this.size * 4 * W)) return explore(this.inst, this.opts)
+
+    let ratio = 4
+    while (this.a < this.size) {
+      const a = this.a
+      const b = this.size
+      const frontier = b - a
+      const expected = Math.ceil(frontier * ratio * 1.25) + 1024
+      if (!this.pooled && frontier >= parallelTuning.minFrontier && !this.startPool()) return this.handover()
+      let redo = true
+      while (redo) {
+        redo = false
+        const size = this.size
+        const need = tableFor(size + expected)
+        if (!this.setTable(Math.max(need, this.T), expected * W, (size + expected) * W)) return this.handover()
+        const stageCap = Math.floor(Math.min(buf.stage.byteLength / 4 / W, buf.minSrc.byteLength / 4, buf.slotOf.byteLength / 4))
+        const maxPending = Math.min(Math.floor(this.T * 3 / 4) - size, limit - size, 2 ** 31 - 1)
+        const pend = Math.max(0, Math.min(maxPending, Math.floor(pool.caps.stage / 4 / W), pool.caps.perState / 4))
+        if (pend > stageCap) {
+          if (!this.grow('stage', pend * W * 4) || !this.grow('minSrc', pend * 4) || !this.grow('slotOf', pend * 4)) return this.handover()
+        }
+        if (!this.grow('blocks', (Math.ceil(frontier / BLOCK) + 1) * 4)) return this.handover()
+        // Room in the arena for every state this level may add, as far as the buffer allows.
+        this.grow('arena', Math.min(pool.caps.arena, (size + pend) * W * 4))
+        ctrl[C.ARENACAP] = Math.floor(buf.arena.byteLength / 4 / W)
+        ctrl[C.A] = a; ctrl[C.B] = b; ctrl[C.SIZE] = size; ctrl[C.MAXPEND] = pend; ctrl[C.ROOM] = this.room(); ctrl[C.BLOCK] = BLOCK
+        ctrl[C.HALT] = 0; ctrl[C.OVERFLOW] = 0; ctrl[C.RESERVE] = 0; ctrl[C.SKIP] = 0; ctrl[C.BAR] = 0
+        this.phase(PHASE.LEVEL)
+        if (this.stopped) { this.discard(); return this.finish(false) }
+        if (ctrl[C.OVERFLOW] !== 0) {
+          const reserved = Atomics.load(ctrl, C.RESERVE)
+          this.discard()
+          // The state limit falls in this level, or the buffers are full: the sequential search goes on.
+          if (pend >= limit - size || pend < maxPending) return this.handover()
+          // The table was too small for this level: grow it and expand the level again.
+          if (!this.setTable(tableFor(size + reserved * 2), reserved * 2 * W, (size + reserved * 2) * W)) return this.handover()
+          redo = true
+          continue
+        }
+        // An invariant failed, a model error, the state limit, or lists as wide as the room.
+        if (ctrl[C.SKIP] !== 0) { this.discard(); return this.handover() }
+      }
+      const fresh = ctrl[C.FRESH]
+      let levelTransitions = 0
+      for (let w = 0; w < this.P; w++) levelTransitions += ctrl[C.TRANS + w] >>> 0
+      Atomics.store(ctrl, C.RESERVE, 0)
+      this.transitions += levelTransitions
+      ratio = Math.max(0.25, fresh / frontier)
+      this.a = b
+      this.size = b + fresh
+      if (fresh > 0) this.levelStart.push(b)
+      if (this.stopped) return this.finish(false)
+    }
+    return this.finish(true)
+  }
+
+  private capOf(name: BufferName): number {
+    return name === 'minSrc' || name === 'slotOf' || name === 'blocks' ? this.pool.caps.perState : this.pool.caps[name]
+  }
+
   /** Grows a buffer to at least `bytes`: in place, or by a new buffer the workers are given. */
-  const grow = (name: BufferName, bytes: number): boolean => {
+  private grow(name: BufferName, bytes: number): boolean {
+    const { pool, buf } = this
     if (!pool.replace) return ensure(buf[name], bytes)
     const old = buf[name]
     if (old.byteLength >= bytes) return true
-    const cap = capOf(name)
+    const cap = this.capOf(name)
     if (bytes > cap) return false
     const next = new SharedArrayBuffer(Math.min(cap, Math.ceil(Math.max(bytes, old.byteLength * 1.5) / 65536) * 65536))
     new Uint8Array(next).set(new Uint8Array(old))
     pool.replace(name, next)
     return true
   }
-  /** Workers taking part: 1 (this thread) until a level is wide enough, then the pool's. */
-  let P = 1
-  let pooled = false
-  const ctrl = new Int32Array(buf.ctrl)
-  const err = new Uint8Array(buf.err)
-  // Length-tracking views: they follow the buffers' growth.
-  const arenaV = (): Uint32Array => u32(buf.arena)
-  const invariant = opts.invariant
 
-  // Level 0 on this thread: the initial states, deduplicated and checked as explore() does; if
-  // anything stops the search there, explore() does it all (it costs one level).
-  const init = inst.initialStates()
-  const first = new StateStore(W, Math.max(16, init.length / W))
-  for (let off = 0; off < init.length; off += W) {
-    if (first.lookup(init, off) >= 0) continue
-    if (first.size >= limit) return explore(inst, opts)
-    first.insert(init, off)
-    if (invariant) {
-      let ok: boolean
-      try { ok = invariant(init, off) } catch (e) { if (e instanceof PropertyFault) return explore(inst, opts); throw e }
-      if (!ok) return explore(inst, opts)
-    }
-  }
-  let size = first.size
-  let T = 0
-
-  let lastReport = t0
-  let stopped = false
-  let transitions = 0
   /** Stop requests and progress (at most every 100 ms). */
-  const poll = (kind: number): void => {
-    if (!stopped && opts.shouldStop && opts.shouldStop()) {
-      stopped = true
+  private poll(kind: number): void {
+    const { opts, ctrl } = this
+    if (!this.stopped && opts.shouldStop && opts.shouldStop()) {
+      this.stopped = true
       Atomics.store(ctrl, C.STOPREQ, 1)
     }
     if (opts.onProgress) {
       const now = performance.now()
-      if (now - lastReport >= 100) {
-        lastReport = now
-        const seconds = (now - t0) / 1000
-        const states = size + (kind === PHASE.LEVEL ? Math.max(0, Atomics.load(ctrl, C.RESERVE)) : 0)
-        opts.onProgress({ states, transitions, statesPerSecond: seconds > 0 ? states / seconds : 0, seconds })
+      if (now - this.lastReport >= 100) {
+        this.lastReport = now
+        const seconds = (now - this.t0) / 1000
+        const states = this.size + (kind === PHASE.LEVEL ? Math.max(0, Atomics.load(ctrl, C.RESERVE)) : 0)
+        opts.onProgress({ states, transitions: this.transitions, statesPerSecond: seconds > 0 ? states / seconds : 0, seconds })
       }
     }
   }
+
   /** Runs one phase on every worker; polls stop requests and progress while it waits. */
-  const phase = (kind: number): void => {
-    if (!pooled) return runLocal(kind)
+  private phase(kind: number): void {
+    if (!this.pooled) return this.runLocal(kind)
+    const ctrl = this.ctrl
     Atomics.store(ctrl, C.DONE, 0)
     Atomics.store(ctrl, C.NEXT, 0)
     Atomics.store(ctrl, C.PHASE, kind)
@@ -239,85 +341,82 @@ export function exploreParallel(inst: Instance, opts: ExploreOptions, job: Paral
     Atomics.notify(ctrl, C.GEN)
     for (;;) {
       const d = Atomics.load(ctrl, C.DONE)
-      if (d >= P) break
+      if (d >= this.P) break
       Atomics.wait(ctrl, C.DONE, d, 50)
-      poll(kind)
+      this.poll(kind)
     }
     const f = Atomics.load(ctrl, C.FAULT)
     if (f !== 0) {
       Atomics.store(ctrl, C.FAULT, 0)
-      throw new Error(`parallel exploration worker ${f} failed: ${faultMessage(err)}`)
+      throw new Error(`parallel exploration worker ${f} failed: ${faultMessage(this.err)}`)
     }
   }
 
-  // This thread's own views and level record, for the levels it expands itself.
-  const localViews = (): WorkerViews => ({
-    ctrl, err, job: buf.job, table: buf.table, arena: buf.arena, stage: buf.stage, minSrc: buf.minSrc, slotOf: buf.slotOf, blocks: buf.blocks,
-  })
-  const localJob: CompiledJob = { inst, invariant }
-  const localState = new LevelState(W)
-  const runLocal = (kind: number): void => {
-    Atomics.store(ctrl, C.NEXT, 0)
-    switch (kind) {
-      case PHASE.CLEAR: clearPhase(localViews()); break
-      case PHASE.REHASH: rehashPhase(localViews(), W); break
-      case PHASE.LEVEL: levelPhase(localViews(), 0, 1, localJob, localState, true); break
-    }
-    poll(kind)
+  /** This thread's own views of the buffers. */
+  private localViews(): WorkerViews {
+    const { ctrl, err, buf } = this
+    return { ctrl, err, job: buf.job, table: buf.table, arena: buf.arena, stage: buf.stage, minSrc: buf.minSrc, slotOf: buf.slotOf, blocks: buf.blocks }
   }
+
+  private runLocal(kind: number): void {
+    Atomics.store(this.ctrl, C.NEXT, 0)
+    switch (kind) {
+      case PHASE.CLEAR: clearPhase(this.localViews()); break
+      case PHASE.REHASH: rehashPhase(this.localViews(), this.W); break
+      case PHASE.LEVEL: levelPhase(this.localViews(), 0, 1, this.localJob, this.localState, true); break
+    }
+    this.poll(kind)
+  }
+
   /** Hands the search to the pool: each worker compiles its own instance and invariant from plain data. */
-  const startPool = (): boolean => {
-    const jobBytes = new TextEncoder().encode(JSON.stringify(job))
-    if (!grow('job', jobBytes.length)) return false
+  private startPool(): boolean {
+    const { pool, buf, ctrl } = this
+    const jobBytes = new TextEncoder().encode(JSON.stringify(this.job))
+    if (!this.grow('job', jobBytes.length)) return false
     pool.start()
     new Uint8Array(buf.job).set(jobBytes)
     ctrl[C.JOBLEN] = jobBytes.length
     ctrl[C.WORKERS] = pool.size
-    err.fill(0)
-    pooled = true
-    P = pool.size
-    phase(PHASE.JOB)
+    this.err.fill(0)
+    this.pooled = true
+    this.P = pool.size
+    this.phase(PHASE.JOB)
     return true
   }
-  ctrl[C.STOPREQ] = 0
 
-  let touchedStage = 0
-  let touchedArena = 0
   /** A table of `len` slots holding the committed states; false when it does not fit the buffers. */
-  const setTable = (len: number, stageWords: number, arenaWords: number): boolean => {
+  private setTable(len: number, stageWords: number, arenaWords: number): boolean {
+    const { pool, ctrl } = this
     const stageTo = Math.min(stageWords, pool.caps.stage / 4)
     const arenaTo = Math.min(arenaWords, pool.caps.arena / 4)
-    if (!grow('table', len * 4) || !grow('stage', stageTo * 4) || !grow('arena', arenaTo * 4)) return false
+    if (!this.grow('table', len * 4) || !this.grow('stage', stageTo * 4) || !this.grow('arena', arenaTo * 4)) return false
     // Memory is touched here, by every worker, before the search needs it: page faults serialize.
-    if (len <= T && touchedStage >= stageTo && touchedArena >= arenaTo) return true
-    ctrl[C.CLEAR_TO] = len > T ? len : 0
-    ctrl[C.STAGE_FROM] = Math.min(touchedStage, stageTo); ctrl[C.STAGE_TO] = stageTo
-    ctrl[C.ARENA_FROM] = Math.min(touchedArena, arenaTo); ctrl[C.ARENA_TO] = arenaTo
-    touchedStage = Math.max(touchedStage, stageTo)
-    touchedArena = Math.max(touchedArena, arenaTo)
-    phase(PHASE.CLEAR)
-    if (len > T) {
-      T = len
-      ctrl[C.TLEN] = T
-      ctrl[C.MASK] = T - 1
-      ctrl[C.SIZE] = size
-      phase(PHASE.REHASH)
+    if (len <= this.T && this.touchedStage >= stageTo && this.touchedArena >= arenaTo) return true
+    ctrl[C.CLEAR_TO] = len > this.T ? len : 0
+    ctrl[C.STAGE_FROM] = Math.min(this.touchedStage, stageTo); ctrl[C.STAGE_TO] = stageTo
+    ctrl[C.ARENA_FROM] = Math.min(this.touchedArena, arenaTo); ctrl[C.ARENA_TO] = arenaTo
+    this.touchedStage = Math.max(this.touchedStage, stageTo)
+    this.touchedArena = Math.max(this.touchedArena, arenaTo)
+    this.phase(PHASE.CLEAR)
+    if (len > this.T) {
+      this.T = len
+      ctrl[C.TLEN] = this.T
+      ctrl[C.MASK] = this.T - 1
+      ctrl[C.SIZE] = this.size
+      this.phase(PHASE.REHASH)
     }
     return true
   }
-  if (!grow('arena', size * W * 4)) return explore(inst, opts)
-  arenaV().set(first.data.subarray(0, size * W))
-  if (!setTable(tableFor(size * 4), size * 4 * W, size * 4 * W)) return explore(inst, opts)
 
-  const levelStart: number[] = [0]
-  let a = 0
-  let ratio = 4
-  const room = (): number => Math.min(2 ** 31 - 1, Math.max(0, limit - size))
+  private room(): number { return Math.min(2 ** 31 - 1, Math.max(0, this.limit - this.size)) }
+
+  private tableVFixed(): Int32Array { return new Int32Array(this.buf.table, 0, this.T) }
 
   /** Clears the pending slots of an undone level. */
-  const discard = (): void => {
-    const table = tableVFixed()
-    const slotOf = i32(buf.slotOf)
+  private discard(): void {
+    const ctrl = this.ctrl
+    const table = this.tableVFixed()
+    const slotOf = i32(this.buf.slotOf)
     const reserved = Math.min(Math.max(0, Atomics.load(ctrl, C.RESERVE)), ctrl[C.MAXPEND])
     for (let p = 0; p < reserved; p++) {
       const s = slotOf[p]
@@ -326,72 +425,27 @@ export function exploreParallel(inst: Instance, opts: ExploreOptions, job: Paral
     }
     Atomics.store(ctrl, C.RESERVE, 0)
   }
-  const tableVFixed = (): Int32Array => new Int32Array(buf.table, 0, T)
+
   /** The states found so far as a StateStore of this thread (copies: the pool's buffers are reused). */
-  const storeOf = (): StateStore => StateStore.adopt(W, new Uint32Array(buf.arena, 0, size * W).slice(), tableVFixed().slice(), size)
-  /** Level `a` (the last in `levelStart`) is redone by the sequential search, which goes on from there. */
-  const handover = (): ExploreResult => {
-    const r = explore(inst, { ...opts, resume: { store: storeOf(), levelStart, head: a, transitions } })
-    r.seconds = (performance.now() - t0) / 1000
-    return r
-  }
-  const finish = (complete: boolean): ExploreResult => {
-    const store = storeOf()
-    return {
-      states: size, transitions, complete, stopped: !complete, limitHit: false, memoryHit: false, outcome: 'ok', trace: null, error: null, store,
-      seconds: (performance.now() - t0) / 1000, bytesPerState: size > 0 ? store.bytes / size : 0,
-    }
+  private storeOf(): StateStore {
+    return StateStore.adopt(this.W, new Uint32Array(this.buf.arena, 0, this.size * this.W).slice(), this.tableVFixed().slice(), this.size)
   }
 
-  while (a < size) {
-    const b = size
-    const frontier = b - a
-    const expected = Math.ceil(frontier * ratio * 1.25) + 1024
-    if (!pooled && frontier >= parallelTuning.minFrontier && !startPool()) return handover()
-    let redo = true
-    while (redo) {
-      redo = false
-      const need = tableFor(size + expected)
-      if (!setTable(Math.max(need, T), expected * W, (size + expected) * W)) return handover()
-      const stageCap = Math.floor(Math.min(buf.stage.byteLength / 4 / W, buf.minSrc.byteLength / 4, buf.slotOf.byteLength / 4))
-      const maxPending = Math.min(Math.floor(T * 3 / 4) - size, limit - size, 2 ** 31 - 1)
-      const pend = Math.max(0, Math.min(maxPending, Math.floor(pool.caps.stage / 4 / W), pool.caps.perState / 4))
-      if (pend > stageCap) {
-        if (!grow('stage', pend * W * 4) || !grow('minSrc', pend * 4) || !grow('slotOf', pend * 4)) return handover()
-      }
-      if (!grow('blocks', (Math.ceil(frontier / BLOCK) + 1) * 4)) return handover()
-      // Room in the arena for every state this level may add, as far as the buffer allows.
-      grow('arena', Math.min(pool.caps.arena, (size + pend) * W * 4))
-      ctrl[C.ARENACAP] = Math.floor(buf.arena.byteLength / 4 / W)
-      ctrl[C.A] = a; ctrl[C.B] = b; ctrl[C.SIZE] = size; ctrl[C.MAXPEND] = pend; ctrl[C.ROOM] = room(); ctrl[C.BLOCK] = BLOCK
-      ctrl[C.HALT] = 0; ctrl[C.OVERFLOW] = 0; ctrl[C.RESERVE] = 0; ctrl[C.SKIP] = 0; ctrl[C.BAR] = 0
-      phase(PHASE.LEVEL)
-      if (stopped) { discard(); return finish(false) }
-      if (ctrl[C.OVERFLOW] !== 0) {
-        const reserved = Atomics.load(ctrl, C.RESERVE)
-        discard()
-        // The state limit falls in this level, or the buffers are full: the sequential search goes on.
-        if (pend >= limit - size || pend < maxPending) return handover()
-        // The table was too small for this level: grow it and expand the level again.
-        if (!setTable(tableFor(size + reserved * 2), reserved * 2 * W, (size + reserved * 2) * W)) return handover()
-        redo = true
-        continue
-      }
-      // An invariant failed, a model error, the state limit, or lists as wide as the room.
-      if (ctrl[C.SKIP] !== 0) { discard(); return handover() }
-    }
-    const fresh = ctrl[C.FRESH]
-    let levelTransitions = 0
-    for (let w = 0; w < P; w++) levelTransitions += ctrl[C.TRANS + w] >>> 0
-    Atomics.store(ctrl, C.RESERVE, 0)
-    transitions += levelTransitions
-    ratio = Math.max(0.25, fresh / frontier)
-    a = b
-    size = b + fresh
-    if (fresh > 0) levelStart.push(b)
-    if (stopped) return finish(false)
+  /** Level `a` (the last in `levelStart`) is redone by the sequential search, which goes on from there. */
+  private handover(): ExploreResult {
+    const r = explore(this.inst, { ...this.opts, resume: { store: this.storeOf(), levelStart: this.levelStart, head: this.a, transitions: this.transitions } })
+    r.seconds = (performance.now() - this.t0) / 1000
+    return r
   }
-  return finish(true)
+
+  private finish(complete: boolean): ExploreResult {
+    const store = this.storeOf()
+    const size = this.size
+    return {
+      states: size, transitions: this.transitions, complete, stopped: !complete, limitHit: false, memoryHit: false, outcome: 'ok', trace: null, error: null, store,
+      seconds: (performance.now() - this.t0) / 1000, bytesPerState: size > 0 ? store.bytes / size : 0,
+    }
+  }
 }
 
 /** The buffers a worker reads, as views. */

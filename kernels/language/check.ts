@@ -150,6 +150,47 @@ function checkSettings(protocol: ProtocolModel, properties: PropertyModel[], swe
   return true
 }
 
+/** The sweep items of a `with` clause that read well, and whether all did (the errors are reported). */
+function readSweep(clause: SyntaxNode | null | undefined, protocol: ProtocolModel, pname: string, ctx: BlockContext): { sweep: SweepItem[]; ok: boolean } {
+  const sweep: SweepItem[] = []
+  let ok = true
+  for (const item of clause?.getChildren('SweepItem') ?? []) {
+    const cid = item.getChild('Identifier')!
+    const cname = ctx.text(cid)
+    const constIndex = protocol.consts.findIndex((c) => c.name === cname)
+    if (constIndex < 0) {
+      ctx.error(cid, `protocol \`${pname}\` has no constant \`${cname}\`${didYouMean(cname, namesOf(protocol.consts))}; sweep one of its constants`)
+      ok = false
+      continue
+    }
+    if (sweep.some((s) => s.constIndex === constIndex)) {
+      ctx.error(cid, `constant \`${cname}\` is set twice in this check; set it once`)
+      ok = false
+      continue
+    }
+    const range = item.getChild('SweepRange')
+    const numbers = range ? range.getChildren('SignedNumber') : [item.getChild('SignedNumber')!]
+    const bad = numbers.find((n) => !isModelValue(signed(n, ctx)))
+    if (bad) {
+      ctx.error(bad, `the value ${ctx.text(bad)} for \`${cname}\` is outside the integers a model may hold (${-(2 ** 31)}..${2 ** 31 - 1}); use a smaller value`)
+      ok = false
+      continue
+    }
+    let values: number[]
+    if (range) {
+      const [lo, hi] = numbers.map((n) => signed(n, ctx))
+      if (lo > hi) { ctx.error(range, `the range ${lo}..${hi} for \`${cname}\` is empty; write the smaller value first`); ok = false; continue }
+      if (hi - lo + 1 > MAX_SWEEP_VALUES) { ctx.error(range, `sweeping \`${cname}\` over ${hi - lo + 1} values is more than the ${MAX_SWEEP_VALUES} one sweep item may list; narrow the range`); ok = false; continue }
+      values = []
+      for (let v = lo; v <= hi; v++) values.push(v)
+    } else {
+      values = [signed(numbers[0], ctx)]
+    }
+    sweep.push({ constIndex, values, span: ctx.span(item) })
+  }
+  return { sweep, ok }
+}
+
 /** Resolves one check; null when it cannot run (its errors are reported). */
 export function resolveCheck(node: SyntaxNode, ctx: BlockContext, scope: CheckScope, at: number): CheckModel | null {
   const ids = node.getChildren('Identifier')
@@ -210,41 +251,8 @@ export function resolveCheck(node: SyntaxNode, ctx: BlockContext, scope: CheckSc
     }
   }
 
-  const sweep: SweepItem[] = []
-  for (const item of clauses.with?.getChildren('SweepItem') ?? []) {
-    const cid = item.getChild('Identifier')!
-    const cname = ctx.text(cid)
-    const constIndex = protocol.consts.findIndex((c) => c.name === cname)
-    if (constIndex < 0) {
-      ctx.error(cid, `protocol \`${pname}\` has no constant \`${cname}\`${didYouMean(cname, namesOf(protocol.consts))}; sweep one of its constants`)
-      ok = false
-      continue
-    }
-    if (sweep.some((s) => s.constIndex === constIndex)) {
-      ctx.error(cid, `constant \`${cname}\` is set twice in this check; set it once`)
-      ok = false
-      continue
-    }
-    const range = item.getChild('SweepRange')
-    const numbers = range ? range.getChildren('SignedNumber') : [item.getChild('SignedNumber')!]
-    const bad = numbers.find((n) => !isModelValue(signed(n, ctx)))
-    if (bad) {
-      ctx.error(bad, `the value ${ctx.text(bad)} for \`${cname}\` is outside the integers a model may hold (${-(2 ** 31)}..${2 ** 31 - 1}); use a smaller value`)
-      ok = false
-      continue
-    }
-    let values: number[]
-    if (range) {
-      const [lo, hi] = numbers.map((n) => signed(n, ctx))
-      if (lo > hi) { ctx.error(range, `the range ${lo}..${hi} for \`${cname}\` is empty; write the smaller value first`); ok = false; continue }
-      if (hi - lo + 1 > MAX_SWEEP_VALUES) { ctx.error(range, `sweeping \`${cname}\` over ${hi - lo + 1} values is more than the ${MAX_SWEEP_VALUES} one sweep item may list; narrow the range`); ok = false; continue }
-      values = []
-      for (let v = lo; v <= hi; v++) values.push(v)
-    } else {
-      values = [signed(numbers[0], ctx)]
-    }
-    sweep.push({ constIndex, values, span: ctx.span(item) })
-  }
+  const { sweep, ok: sweepOk } = readSweep(clauses.with, protocol, pname, ctx)
+  if (!sweepOk) ok = false
   const withClause = node.getChild('WithClause')
   const rows = sweep.reduce((n, s) => n * s.values.length, 1)
   if (withClause && rows > MAX_SWEEP_ROWS) {

@@ -35,7 +35,7 @@
 // is reachable from an initial state iff K is (initial states are closed under G). Hence: some
 // fair accepting cycle exists in the full product iff some component passes the test. The test
 // decides the verdict only; a counterexample is found by the unreduced search (run.ts).
-import { allAcceptance } from './automaton'
+import { allAcceptance, type Automaton } from './automaton'
 import { Int32Buffer } from '../base/buffer'
 import type { EdgeSink } from './emptiness'
 import type { Ltl } from './ltl'
@@ -106,38 +106,8 @@ export function checkLtlQuotient(sys: QuotientSystem, formula: Ltl, opts: CheckL
       reason: `the automaton of the property's negation needs ${aut.acceptanceSets} acceptance sets besides the ${f} fairness sets, more than the 31 marks the product supports`,
     }
   }
-  // Labels as the plain product reads them (letters may be predicates over many atom words).
-  const { holds: labelHolds } = labelTest(sys, aut)
-  const group = sys.group
-  const Q = aut.states
-  const dense = sys.states * Q <= DENSE_NODES
-  const pairs = dense ? null : new PairMap()
-  const id = pairs ? (s: number, q: number) => pairs.id(s, q) : (s: number, q: number) => s * Q + q
-  const fairAll = f === 0 ? 0 : (2 ** f - 1) | 0
+  const { labelHolds, id, successors } = quotientProduct(sys, aut)
   const acceptAll = (allAcceptance(aut) << f) | 0
-  const { succStart, succ, accept } = aut
-
-  const sTo = new Int32Buffer(), sPerm = new Int32Buffer(), sFair = new Int32Buffer()
-  /** Product edges out of `node`: target node, permutation, marks (fairness | acceptance << f). */
-  const successors = (node: number, to: Int32Buffer, perm: Int32Buffer, marks: Int32Buffer) => {
-    const s = pairs ? pairs.first.data[node] : Math.floor(node / Q)
-    const q = pairs ? pairs.second.data[node] : node - s * Q
-    const acc = accept[q] << f
-    sTo.length = sPerm.length = sFair.length = 0
-    sys.successors(s, sTo, sPerm, sFair)
-    for (let i = 0; i < sTo.length; i++) {
-      const t = sTo.data[i]
-      const m = (sFair.data[i] | acc) | 0
-      for (let j = succStart[q], e = succStart[q + 1]; j < e; j++) {
-        const r = succ[j]
-        if (labelHolds(r, t)) {
-          to.push(id(t, r))
-          perm.push(sPerm.data[i])
-          marks.push(m)
-        }
-      }
-    }
-  }
 
   // Tarjan's algorithm, iterative; each frame's pending edges contiguous, cut back on pop.
   const index = new Int32Buffer(1 << 16) // 0 unvisited, else DFS number
@@ -149,13 +119,7 @@ export function checkLtlQuotient(sys: QuotientSystem, formula: Ltl, opts: CheckL
   const frameNode = new Int32Buffer(), frameStart = new Int32Buffer(), framePos = new Int32Buffer()
   const edgeTo = new Int32Buffer(), edgePerm = new Int32Buffer(), edgeMark = new Int32Buffer()
   const members = new Int32Buffer()
-  const qTo = new Int32Buffer(), qPerm = new Int32Buffer(), qMark = new Int32Buffer()
-  // Scratch of the component test, reused: the BFS queue, generators seen (stamped), union-find.
-  const queue = new Int32Buffer()
-  const gens = new Int32Array(group.size)
-  const parent = new Int32Array(Math.max(1, f))
-  const classMarks = new Int32Array(Math.max(1, f))
-  let counter = 0, nodes = 0, edges = 0, maxId = -1, comps = 0, components = 0
+  let counter = 0, nodes = 0, edges = 0, maxId = -1, comps = 0
   let lastReport = Date.now()
   const ensure = (v: number) => {
     if (v <= maxId) return
@@ -178,10 +142,128 @@ export function checkLtlQuotient(sys: QuotientSystem, formula: Ltl, opts: CheckL
     ensure(top)
   }
 
-  /** The exact test of the file comment on the component numbered c (its nodes in `members`). */
-  const fairComponent = (c: number): boolean => {
+  const test = new ComponentTest(sys.group, f, acceptAll, successors, comp, members, selfLoop, tree)
+
+  for (const init0 of sys.initial()) {
+    for (let i = 0; i < aut.initial.length; i++) {
+      const q = aut.initial[i]
+      if (!labelHolds(q, init0)) continue
+      const init = id(init0, q)
+      ensure(init)
+      if (index.data[init] !== 0) continue
+      push(init)
+      while (frameNode.length > 0) {
+        const fr = frameNode.length - 1
+        const v = frameNode.data[fr]
+        const p = framePos.data[fr]
+        if (p < edgeTo.length) {
+          framePos.data[fr] = p + 1
+          const w = edgeTo.data[p]
+          if (index.data[w] === 0) {
+            if ((nodes & 1023) === 0) {
+              if (opts.shouldStop?.()) return { holds: null, stopped: true, nodes, edges, components: test.components }
+              if (opts.onProgress) {
+                const now = Date.now()
+                if (now - lastReport >= 100) { lastReport = now; opts.onProgress(nodes, edges) }
+              }
+            }
+            push(w)
+          } else if (comp.data[w] === 0) {
+            if (w === v) selfLoop.data[v] = 1
+            if (index.data[w] < low.data[v]) low.data[v] = index.data[w]
+          }
+          continue
+        }
+        frameNode.pop()
+        framePos.pop()
+        edgeTo.length = edgePerm.length = edgeMark.length = frameStart.pop()
+        if (low.data[v] === index.data[v]) {
+          const c = ++comps
+          members.length = 0
+          let w: number
+          do {
+            w = stack.pop()
+            comp.data[w] = c
+            members.push(w)
+          } while (w !== v)
+          if (test.fair(c)) return { holds: false, stopped: false, nodes, edges, components: test.components }
+        }
+        if (frameNode.length > 0) {
+          const u = frameNode.top()
+          if (low.data[v] < low.data[u]) low.data[u] = low.data[v]
+        }
+      }
+    }
+  }
+  return { holds: true, stopped: false, nodes, edges, components: test.components }
+}
+
+/** Product edges out of a node: target node, permutation, marks (fairness | acceptance << f). */
+type ProductSuccessors = (node: number, to: Int32Buffer, perm: Int32Buffer, marks: Int32Buffer) => void
+
+/** The product of the quotient with the automaton: labels, node ids (dense or paired), and edges. */
+function quotientProduct(sys: QuotientSystem, aut: Automaton) {
+  const f = sys.fairnessSets
+  // Labels as the plain product reads them (letters may be predicates over many atom words).
+  const { holds: labelHolds } = labelTest(sys, aut)
+  const Q = aut.states
+  const dense = sys.states * Q <= DENSE_NODES
+  const pairs = dense ? null : new PairMap()
+  const id = pairs ? (s: number, q: number) => pairs.id(s, q) : (s: number, q: number) => s * Q + q
+  const { succStart, succ, accept } = aut
+
+  const sTo = new Int32Buffer(), sPerm = new Int32Buffer(), sFair = new Int32Buffer()
+  const successors: ProductSuccessors = (node, to, perm, marks) => {
+    const s = pairs ? pairs.first.data[node] : Math.floor(node / Q)
+    const q = pairs ? pairs.second.data[node] : node - s * Q
+    const acc = accept[q] << f
+    sTo.length = sPerm.length = sFair.length = 0
+    sys.successors(s, sTo, sPerm, sFair)
+    for (let i = 0; i < sTo.length; i++) {
+      const t = sTo.data[i]
+      const m = (sFair.data[i] | acc) | 0
+      for (let j = succStart[q], e = succStart[q + 1]; j < e; j++) {
+        const r = succ[j]
+        if (labelHolds(r, t)) {
+          to.push(id(t, r))
+          perm.push(sPerm.data[i])
+          marks.push(m)
+        }
+      }
+    }
+  }
+  return { labelHolds, id, successors }
+}
+
+/** The exact test of the file comment on a component (its nodes in `members`, numbered c in `comp`), with its scratch. */
+class ComponentTest {
+  /** Non-trivial components tested. */
+  components = 0
+  // Scratch, reused: the BFS queue, generators seen (stamped), union-find.
+  private readonly queue = new Int32Buffer()
+  private readonly qTo = new Int32Buffer()
+  private readonly qPerm = new Int32Buffer()
+  private readonly qMark = new Int32Buffer()
+  private readonly gens: Int32Array
+  private readonly parent: Int32Array
+  private readonly classMarks: Int32Array
+  private readonly fairAll: number
+
+  constructor(
+    private readonly group: Symmetries, private readonly f: number, private readonly acceptAll: number,
+    private readonly successors: ProductSuccessors, private readonly comp: Int32Buffer, private readonly members: Int32Buffer,
+    private readonly selfLoop: Int32Buffer, private readonly tree: Int32Buffer,
+  ) {
+    this.gens = new Int32Array(group.size)
+    this.parent = new Int32Array(Math.max(1, f))
+    this.classMarks = new Int32Array(Math.max(1, f))
+    this.fairAll = f === 0 ? 0 : (2 ** f - 1) | 0
+  }
+
+  fair(c: number): boolean {
+    const { group, f, acceptAll, fairAll, successors, comp, members, selfLoop, tree, queue, qTo, qPerm, qMark, gens, parent, classMarks } = this
     if (members.length === 1 && selfLoop.data[members.data[0]] === 0) return false
-    components++
+    this.components++
     for (let k = 0; k < members.length; k++) tree.data[members.data[k]] = -1
     const b = members.data[0]
     tree.data[b] = 0
@@ -227,57 +309,4 @@ export function checkLtlQuotient(sys: QuotientSystem, formula: Ltl, opts: CheckL
     for (let bit = 0; bit < f; bit++) if (!classMarks[find(bit)]) return false
     return true
   }
-
-  for (const init0 of sys.initial()) {
-    for (let i = 0; i < aut.initial.length; i++) {
-      const q = aut.initial[i]
-      if (!labelHolds(q, init0)) continue
-      const init = id(init0, q)
-      ensure(init)
-      if (index.data[init] !== 0) continue
-      push(init)
-      while (frameNode.length > 0) {
-        const fr = frameNode.length - 1
-        const v = frameNode.data[fr]
-        const p = framePos.data[fr]
-        if (p < edgeTo.length) {
-          framePos.data[fr] = p + 1
-          const w = edgeTo.data[p]
-          if (index.data[w] === 0) {
-            if ((nodes & 1023) === 0) {
-              if (opts.shouldStop?.()) return { holds: null, stopped: true, nodes, edges, components }
-              if (opts.onProgress) {
-                const now = Date.now()
-                if (now - lastReport >= 100) { lastReport = now; opts.onProgress(nodes, edges) }
-              }
-            }
-            push(w)
-          } else if (comp.data[w] === 0) {
-            if (w === v) selfLoop.data[v] = 1
-            if (index.data[w] < low.data[v]) low.data[v] = index.data[w]
-          }
-          continue
-        }
-        frameNode.pop()
-        framePos.pop()
-        edgeTo.length = edgePerm.length = edgeMark.length = frameStart.pop()
-        if (low.data[v] === index.data[v]) {
-          const c = ++comps
-          members.length = 0
-          let w: number
-          do {
-            w = stack.pop()
-            comp.data[w] = c
-            members.push(w)
-          } while (w !== v)
-          if (fairComponent(c)) return { holds: false, stopped: false, nodes, edges, components }
-        }
-        if (frameNode.length > 0) {
-          const u = frameNode.top()
-          if (low.data[v] < low.data[u]) low.data[u] = low.data[v]
-        }
-      }
-    }
-  }
-  return { holds: true, stopped: false, nodes, edges, components }
 }

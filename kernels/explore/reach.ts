@@ -155,67 +155,42 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
   const resume = opts.resume
   const store = resume ? resume.store : new StateStore(W, 1024)
   const budget = opts.memoryBudget ?? Infinity
-  let memoryHit = false
   const levelStart: number[] = resume ? resume.levelStart.slice() : [0]
   let transitions = resume ? resume.transitions : 0
   let halted = false
-  let limitHit = false
-  let stopped = false
-  let violation = -1
-  let error: ModelError | null = null
-  let errorSource = -1
+  const end: SearchEnd = { limitHit: false, stopped: false, memoryHit: false, violation: -1, error: null, errorSource: -1 }
 
   const canon = opts.canonicalize
   const rec = opts.edges
   if (rec && canon && !rec.reduced) throw new Error('internal error: edges are recorded between real states, not representatives')
   const rep = new Uint32Array(W)
-  let init = resume ? new Uint32Array(0) : inst.initialStates()
-  if (canon) {
-    const reps = new Uint32Array(init.length)
-    for (let off = 0; off < init.length; off += W) { canon(init, off, rep); reps.set(rep, off) }
-    init = reps
-  }
+  const init = resume ? new Uint32Array(0) : initialRepresentatives(inst, canon, rep)
   /** The invariant on the state just stored as idx; false when it fails or faults (then halted). */
   const check = (w: Uint32Array, off: number, idx: number): boolean => {
     try {
       if (invariant!(w, off)) return true
-      violation = idx
+      end.violation = idx
     } catch (e) {
       if (!(e instanceof PropertyFault)) throw e
-      if (!error) { error = e.toModelError(); errorSource = idx }
+      if (!end.error) { end.error = e.toModelError(); end.errorSource = idx }
     }
     halted = true
     return false
   }
-  // The recorder's bytes are counted with the store's: the store's budget is what is left.
-  const recorded = (): number => (rec?.bytes ?? 0)
   const outOfMemory = (e: unknown): void => {
     if (!isOutOfMemory(e)) throw e
-    memoryHit = halted = true
+    end.memoryHit = halted = true
   }
   try {
     store.budget = budget
-    for (let off = 0; off < init.length && !halted; off += W) {
-      if (store.lookup(init, off) >= 0) continue
-      if (store.size >= limit) {
-        limitHit = halted = true
-        break
-      }
-      const idx = store.insert(init, off)
-      if (invariant) check(init, off, idx)
-    }
+    if (storeInitial(store, init, W, limit, invariant ? check : null)) end.limitHit = halted = true
   } catch (e) {
     outOfMemory(e)
   }
 
   const seen = new TargetSet()
-  // Under reduction, the raw successors of the current source: many successor combinations (crash
-  // subsets, choices) give the same state, and a repeat maps to the same representative, so it
-  // skips the canonical form (the costly part: one image per permutation) and changes nothing.
-  // A reduced recorder still sees a repeat (other processes stepping give other marks), with the
-  // representative and permutation remembered from its first occurrence.
-  const raw = canon ? new StateStore(W, 64) : null
-  let rawRep = new Int32Array(rec ? 64 : 0), rawPerm = new Int32Array(rec ? 64 : 0)
+  const memo = canon ? new RawSuccessors(W, !!rec) : null
+  const raw = memo ? memo.raw : null
   let perm = 0
   const emit = (succ: Uint32Array, stepped: number, receivedFrom: number): boolean => {
     let dst = succ
@@ -223,26 +198,16 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
       const before = raw!.size
       const k = raw!.insert(succ, 0)
       if (k < before) {
-        if (rec) rec.edge(rawRep[k], succ, stepped, receivedFrom, rawPerm[k])
+        if (rec) rec.edge(memo!.rep[k], succ, stepped, receivedFrom, memo!.perm[k])
         return false
       }
       perm = canon(succ, 0, rep) ?? 0
       dst = rep
-      if (rec) {
-        if (k >= rawRep.length) {
-          const a = new Int32Array(rawRep.length * 2); a.set(rawRep); rawRep = a
-          const b = new Int32Array(rawPerm.length * 2); b.set(rawPerm); rawPerm = b
-        }
-        rawPerm[k] = perm
-        rawRep[k] = -1
-      }
+      if (rec) memo!.note(k, perm)
     }
     let idx = store.lookup(dst, 0)
     if (idx < 0) {
-      if (store.size >= limit) {
-        limitHit = halted = true
-        return true
-      }
+      if (store.size >= limit) { end.limitHit = halted = true; return true }
       idx = store.insert(dst, 0)
       if (seen.add(idx)) transitions++
       if (rec) record(idx, succ, stepped, receivedFrom)
@@ -256,7 +221,7 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
 
   // Unreduced, `succ` is the state stored; reduced, the raw successor (the recorder's `dst`).
   const record = (idx: number, succ: Uint32Array, stepped: number, receivedFrom: number) => {
-    if (canon) rawRep[raw!.size - 1] = idx
+    if (memo) memo.rep[raw!.size - 1] = idx
     rec!.edge(idx, succ, stepped, receivedFrom, perm)
   }
 
@@ -265,9 +230,8 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
   const src = new Uint32Array(W)
   let head = resume ? resume.head : 0
   let levelEnd = store.size
-  let lastReport = t0
-  let sinceCheck = 0
-  let transitionsAtCheck = 0
+  const progress = { t0, last: t0 }
+  let sinceCheck = 0, transitionsAtCheck = 0
   while (!halted && head < store.size) {
     if (head === levelEnd) {
       levelStart.push(head)
@@ -285,54 +249,131 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
       outOfMemory(e)
       break
     }
-    if (bound.interrupted) {
-      stopped = halted = true
-      break
-    }
-    if (err && !halted && !error) {
-      error = err
-      errorSource = head
+    if (bound.interrupted) { end.stopped = halted = true; break }
+    if (err && !halted && !end.error) {
+      end.error = err
+      end.errorSource = head
       if (!opts.continueOnError) halted = true
     }
     head++
     if (++sinceCheck >= 64 || transitions - transitionsAtCheck >= 4096) {
       sinceCheck = 0
       transitionsAtCheck = transitions
-      if (rec && budget !== Infinity) {
-        const left = budget - recorded()
-        if (store.bytes > left) {
-          memoryHit = halted = true
-          break
-        }
-        store.budget = left
-      }
-      if (opts.shouldStop && opts.shouldStop()) {
-        stopped = halted = true
-        break
-      }
-      if (opts.onProgress) {
-        const now = performance.now()
-        if (now - lastReport >= 100) {
-          lastReport = now
-          const seconds = (now - t0) / 1000
-          opts.onProgress({ states: store.size, transitions, statesPerSecond: seconds > 0 ? store.size / seconds : 0, seconds })
-        }
-      }
+      const pause = pauseReason(store, rec, budget, opts, progress, transitions)
+      if (pause === 'memory') end.memoryHit = halted = true
+      else if (pause === 'stop') end.stopped = halted = true
+      if (halted) break
     }
   }
+  return exploreResult(inst, store, levelStart, levelEnd, end, !!canon, transitions, halted, t0)
+}
 
+/** How a search stopped short of completing; written when it stops. */
+interface SearchEnd {
+  limitHit: boolean
+  stopped: boolean
+  memoryHit: boolean
+  /** The state that violates the invariant, or -1. */
+  violation: number
+  /** The first model error, on the expansion of (or the property at) `errorSource`. */
+  error: ModelError | null
+  errorSource: number
+}
+
+/** The initial states, as their representatives under `canon`. */
+function initialRepresentatives(inst: Instance, canon: ExploreOptions['canonicalize'], rep: Uint32Array): Uint32Array {
+  const init = inst.initialStates()
+  if (!canon) return init
+  const W = inst.words
+  const reps = new Uint32Array(init.length)
+  for (let off = 0; off < init.length; off += W) { canon(init, off, rep); reps.set(rep, off) }
+  return reps
+}
+
+/** Stores the initial states once each, checking each new one (`check` false stops); true when the state limit stops it. */
+function storeInitial(store: StateStore, init: Uint32Array, W: number, limit: number, check: ((w: Uint32Array, off: number, idx: number) => boolean) | null): boolean {
+  for (let off = 0; off < init.length; off += W) {
+    if (store.lookup(init, off) >= 0) continue
+    if (store.size >= limit) return true
+    const idx = store.insert(init, off)
+    if (check && !check(init, off, idx)) return false
+  }
+  return false
+}
+
+/**
+ * Under reduction, the raw successors of the current source: many successor combinations (crash
+ * subsets, choices) give the same state, and a repeat maps to the same representative, so it
+ * skips the canonical form (the costly part: one image per permutation) and changes nothing.
+ * A reduced recorder still sees a repeat (other processes stepping give other marks), with the
+ * representative and permutation remembered from its first occurrence.
+ */
+class RawSuccessors {
+  readonly raw: StateStore
+  /** Per raw successor (recorded searches only): the store index of its representative, -1 until known. */
+  rep: Int32Array
+  /** Per raw successor (recorded searches only): the permutation that maps it to its representative. */
+  perm: Int32Array
+  constructor(W: number, recorded: boolean) {
+    this.raw = new StateStore(W, 64)
+    this.rep = new Int32Array(recorded ? 64 : 0)
+    this.perm = new Int32Array(recorded ? 64 : 0)
+  }
+
+  /** Raw successor k is new, mapped by `perm`; its representative's index comes with its edge. */
+  note(k: number, perm: number): void {
+    if (k >= this.rep.length) {
+      const a = new Int32Array(this.rep.length * 2); a.set(this.rep); this.rep = a
+      const b = new Int32Array(this.perm.length * 2); b.set(this.perm); this.perm = b
+    }
+    this.perm[k] = perm
+    this.rep[k] = -1
+  }
+}
+
+/**
+ * The periodic checks of a search (every 64 sources or 4096 transitions): the memory budget,
+ * counting the recorder's bytes with the store's (the store's budget is what is left), a stop
+ * request, and progress (at most every 100 ms). Why the search stops, or null.
+ */
+function pauseReason(
+  store: StateStore, rec: EdgeRecorder | undefined, budget: number, opts: ExploreOptions, progress: { t0: number; last: number }, transitions: number,
+): 'memory' | 'stop' | null {
+  if (rec && budget !== Infinity) {
+    const left = budget - (rec.bytes ?? 0)
+    if (store.bytes > left) return 'memory'
+    store.budget = left
+  }
+  if (opts.shouldStop && opts.shouldStop()) return 'stop'
+  if (opts.onProgress) {
+    const now = performance.now()
+    if (now - progress.last >= 100) {
+      progress.last = now
+      const seconds = (now - progress.t0) / 1000
+      opts.onProgress({ states: store.size, transitions, statesPerSecond: seconds > 0 ? store.size / seconds : 0, seconds })
+    }
+  }
+  return null
+}
+
+/** The result of a search that ended (halted or not) with `store` and `levelStart`; traces are rebuilt here. */
+function exploreResult(
+  inst: Instance, store: StateStore, levelStart: number[], levelEnd: number, end: SearchEnd, reduced: boolean,
+  transitions: number, halted: boolean, t0: number,
+): ExploreResult {
   // States found while expanding the last level started the next one.
   if (levelStart[levelStart.length - 1] < levelEnd && levelEnd < store.size) levelStart.push(levelEnd)
   let outcome: ExploreResult['outcome'] = 'ok'
   let trace: number[] | null = null
-  if (violation >= 0) {
+  if (end.violation >= 0) {
     outcome = 'violation'
-    trace = canon ? null : traceTo(inst, store, levelStart, violation)
-  } else if (error) {
+    trace = reduced ? null : traceTo(inst, store, levelStart, end.violation)
+  } else if (end.error) {
     outcome = 'model-error'
-    trace = canon ? null : traceTo(inst, store, levelStart, errorSource)
+    trace = reduced ? null : traceTo(inst, store, levelStart, end.errorSource)
   }
   const seconds = (performance.now() - t0) / 1000
+  const { limitHit, stopped, memoryHit, error } = end
   return {
     states: store.size, transitions, complete: !halted, stopped, limitHit, memoryHit, outcome, trace, error, store, seconds,
     bytesPerState: store.size > 0 ? store.bytes / store.size : 0,

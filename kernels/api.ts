@@ -20,6 +20,7 @@ export { printFormula, printProperties } from './language/formula-print'
 export type { PrintedProperty } from './language/formula-print'
 export { sha256Hex } from './base/hash'
 export { canonicalJsonPretty } from './base/canonical'
+export { errorText } from './base/error-text'
 export { buildRecord } from './record/record'
 // The workbench's parallel exploration pool (Web Workers over SharedArrayBuffer): the kernel
 // worker starts and registers it, each exploration worker serves the parallel search.

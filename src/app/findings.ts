@@ -3,7 +3,7 @@
 // the notebook summary at the top, and the run that makes a verification record (in the kernel
 // worker, which also gives the cache keys their SHA-256). The page owns the text and the views;
 // this owns the checks.
-import type { CheckRow, NotebookModel } from '../../kernels/api'
+import { errorText, type CheckRow, type NotebookModel } from '../../kernels/api'
 import { CheckLineView, FormalView, type BlockHost, type BlockView } from './blocks'
 import { el } from './dom'
 import { importProblems } from './import-file'
@@ -171,7 +171,7 @@ export class Findings {
       return made.json
     } catch (e) {
       for (const l of lines) l?.running(false)
-      this.host.notice(`No record was made: ${e instanceof StoppedError ? 'stopped by you' : `the kernel failed (${(e as Error)?.message ?? e})`}.`)
+      this.host.notice(`No record was made: ${e instanceof StoppedError ? 'stopped by you' : `the kernel failed (${errorText(e)})`}.`)
       return null
     } finally {
       this.running = null
@@ -237,7 +237,7 @@ export class Findings {
           }
         } catch (e) {
           this.lineView(c)?.running(false)
-          if (!(e instanceof StoppedError)) { this.lineView(c)?.note(`the kernel failed: ${(e as Error)?.message ?? e}`); continue }
+          if (!(e instanceof StoppedError)) { this.lineView(c)?.note(`the kernel failed: ${errorText(e)}`); continue }
           if (!rows.length) { this.lineView(c)?.note('stopped before any row finished: inconclusive'); break }
         }
         const stopped = this.running.stop
@@ -256,7 +256,7 @@ export class Findings {
   private finished(c: number, key: string, rows: CheckRow[], stopped: string | null): void {
     if (!stopped) {
       this.memo.set(key, rows)
-      this.host.shelf.putResult(key, rows).catch((e) => this.host.notice(`Could not keep the findings in the browser: ${(e as Error)?.message ?? e}`))
+      this.host.shelf.putResult(key, rows).catch((e) => this.host.notice(`Could not keep the findings in the browser: ${errorText(e)}`))
     }
     const now = this.checks[c]
     if (!now) return

@@ -5,6 +5,7 @@
 import { mergeTexts } from './merge'
 import { Shelf, newId, shownTitle, type StoredNotebook } from './store'
 import { withTitle } from './title'
+import { errorText } from '../../kernels/api'
 
 const SAVE_DELAY = 500
 const CHANNEL = 'twofold-notebooks'
@@ -102,7 +103,7 @@ export class Keeper {
       this.keepPending()
       this.host.status('not saved')
       if (!this.failing) {
-        this.host.notice(`Could not save this notebook in the browser: ${(e as Error)?.message || e}. The text stays open here; save it as .md to keep your changes.`,
+        this.host.notice(`Could not save this notebook in the browser: ${errorText(e)}. The text stays open here; save it as .md to keep your changes.`,
           { label: 'save as .md', run: () => this.host.exportNow() })
       }
       this.failing = true

@@ -1,6 +1,6 @@
 // Shelf operations on whole notebooks: open, create, rename, what follows a delete, import, and
 // the first opening of the page. The page owns the open notebook; this decides which one it is.
-import type { NotebookModel } from '../../kernels/api'
+import { errorText, type NotebookModel } from '../../kernels/api'
 import { ImportRefused, decodeText, importProblems } from './import-file'
 import { Shelf, newId, type StoredNotebook } from './store'
 import { withTitle } from './title'
@@ -35,7 +35,7 @@ export class Notebooks {
       }
       await this.shelf.setOpenId(entry!.id)
     } catch (e) {
-      this.host.notice(`This browser refused to store notebooks (${(e as Error).message || e}); changes will be lost when the page closes.`)
+      this.host.notice(`This browser refused to store notebooks (${errorText(e)}); changes will be lost when the page closes.`)
       entry = { id: newId(), text: this.guide, changed: Date.now() }
     }
     this.host.load(entry!)
@@ -52,7 +52,7 @@ export class Notebooks {
       this.host.load(entry)
       await this.host.shelfChanged()
     } catch (e) {
-      this.host.notice(`Could not open the notebook: ${(e as Error)?.message ?? e}`)
+      this.host.notice(`Could not open the notebook: ${errorText(e)}`)
     }
   }
 
@@ -81,7 +81,7 @@ export class Notebooks {
     try {
       await this.createNotebook(text)
     } catch (e) {
-      this.host.notice(`Could not create a notebook in this browser: ${(e as Error)?.message ?? e}`)
+      this.host.notice(`Could not create a notebook in this browser: ${errorText(e)}`)
     }
   }
 
@@ -104,7 +104,7 @@ export class Notebooks {
       this.host.notice(`Imported ${file.name}.`)
       return true
     } catch (e) {
-      const reasons = e instanceof ImportRefused ? e.reasons : [`this browser refused to store it (${(e as Error)?.message ?? e})`]
+      const reasons = e instanceof ImportRefused ? e.reasons : [`this browser refused to store it (${errorText(e)})`]
       const shown = reasons.slice(0, 3).join('; ') + (reasons.length > 3 ? `; and ${reasons.length - 3} more` : '')
       this.host.notice(`Nothing was imported from ${file.name}: ${shown}.`)
       return false

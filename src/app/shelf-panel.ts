@@ -5,6 +5,7 @@ import { button, el } from './dom'
 import { ACTION_WINDOW } from './notices'
 import { Shelf, type NotebookSummary, type StoredNotebook } from './store'
 import { titleOf, withTitle } from './title'
+import { errorText } from '../../kernels/api'
 
 /** What the shelf asks of the workbench. */
 export interface ShelfActions {
@@ -58,7 +59,7 @@ export class ShelfPanel {
     try {
       items = await this.shelf.list()
     } catch (e) {
-      this.list.replaceChildren(el('li', { class: 'quiet' }, `The list could not be read: ${(e as Error)?.message ?? e}`))
+      this.list.replaceChildren(el('li', { class: 'quiet' }, `The list could not be read: ${errorText(e)}`))
       return
     }
     this.list.replaceChildren(...items.filter((n) => !this.deleting.has(n.id)).map((n) => this.item(n)))
@@ -84,7 +85,7 @@ export class ShelfPanel {
       input.onblur = null
       const title = input.value.trim()
       if (ok && title && title !== n.title) {
-        try { await this.actions.rename(n.id, title) } catch (e) { this.actions.notice(`Could not rename: ${(e as Error)?.message ?? e}`) }
+        try { await this.actions.rename(n.id, title) } catch (e) { this.actions.notice(`Could not rename: ${errorText(e)}`) }
       }
       await this.refresh()
     }
@@ -104,7 +105,7 @@ export class ShelfPanel {
       await this.refresh()
       this.actions.duplicated(copy)
     } catch (e) {
-      this.actions.notice(`Could not duplicate: ${(e as Error)?.message ?? e}`)
+      this.actions.notice(`Could not duplicate: ${errorText(e)}`)
     }
   }
 
@@ -115,7 +116,7 @@ export class ShelfPanel {
    */
   private async remove(n: NotebookSummary): Promise<void> {
     let entry: StoredNotebook | undefined
-    try { entry = await this.shelf.load(n.id) } catch (e) { this.actions.notice(`Could not delete: ${(e as Error)?.message ?? e}`); return }
+    try { entry = await this.shelf.load(n.id) } catch (e) { this.actions.notice(`Could not delete: ${errorText(e)}`); return }
     if (!entry) return
     const kept = entry
     const timer = window.setTimeout(() => void this.commitDelete(kept), ACTION_WINDOW)
@@ -141,7 +142,7 @@ export class ShelfPanel {
     } catch (e) {
       this.deleting.delete(entry.id)
       await this.refresh()
-      this.actions.notice(`Could not delete “${titleOf(entry.text) ?? 'the notebook'}” (${(e as Error)?.message ?? e}); it is still kept.`,
+      this.actions.notice(`Could not delete “${titleOf(entry.text) ?? 'the notebook'}” (${errorText(e)}); it is still kept.`,
         { label: 'save it as .md', run: () => this.actions.exportText(entry.text) })
     }
   }

@@ -3,7 +3,7 @@
 // edits (insert, move, remove, prose that gains a heading) re-segment the text and rebuild the
 // views. Typing never waits for the kernel: analysis is debounced and runs in its own worker, and
 // results are marked out of date synchronously from the dependencies of the last analysis.
-import type { NotebookModel } from '../../kernels/api'
+import { errorText, type NotebookModel } from '../../kernels/api'
 import { FormalView, ProseView, type BlockHost, type BlockView } from './blocks'
 import { el } from './dom'
 import { exportMarkdown, exportRecord, exportReport, type ExportHost } from './exports'
@@ -264,7 +264,7 @@ export class Workbench {
     try {
       model = await this.kernel.analyze(text)
     } catch (e) {
-      this.notesEl.replaceChildren(el('p', {}, `The kernel could not read this notebook: ${(e as Error)?.message ?? e}`))
+      this.notesEl.replaceChildren(el('p', {}, `The kernel could not read this notebook: ${errorText(e)}`))
       return
     }
     if (text !== this.text) return // a newer analysis is already scheduled

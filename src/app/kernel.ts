@@ -13,8 +13,19 @@ export class StoppedError extends Error {
   constructor() { super('stopped before the kernel could report') }
 }
 
+/**
+ * The parallel exploration pool is opt-in in the workbench: `?workers=N` (or `?workers=auto`, one
+ * per core) in the page's address. By default rows explore on the one kernel worker, because the
+ * pool was seen to hang now and then when runs follow each other quickly (see DEVELOPERS.md).
+ */
+function workersWanted(): string {
+  const w = new URLSearchParams(location.search).get('workers') ?? ''
+  return /^(auto|[0-9]{1,3})$/.test(w) ? w : ''
+}
+
 function spawn(): { worker: Worker; api: Comlink.Remote<KernelApi> } {
-  const worker = new Worker(new URL('./worker.ts', import.meta.url), { type: 'module', name: 'twofold-kernel' })
+  const wanted = workersWanted()
+  const worker = new Worker(new URL('./worker.ts', import.meta.url), { type: 'module', name: wanted ? `twofold-kernel workers=${wanted}` : 'twofold-kernel' })
   return { worker, api: Comlink.wrap<KernelApi>(worker) }
 }
 

@@ -114,7 +114,7 @@ function cell(r: CheckRow, sharedError: boolean): Markup {
     ? (sharedError ? html`<div class="note">the model error below stops this check</div>` : html`<div class="note">${modelErrorMarkup(r.counterexample!.message)}</div>`)
     : r.note ? html`<div class="note">${withCode(r.note)}</div>` : null
   const kind = shownVerdict(r)
-  return html`<td class="verdict v-${kind === 'model-error' ? 'model-error' : r.verdict}" id="row-${r.row}" data-row="${r.row}">${verdictWord(r)}${alarm}<div class="counts">${count(r.states)} states · ${count(r.transitions)} transitions${partial}</div><div class="counts">${r.method ? `${r.method === 'induction' ? 'induction' : r.search === 'ltl' ? 'temporal' : 'invariant'}, ` : ''}${r.seconds.toFixed(2)} s${r.reducedStates !== undefined ? ` · ${count(r.reducedStates)} up to symmetry` : ''}</div>${note}</td>`
+  return html`<td class="verdict v-${kind === 'model-error' ? 'model-error' : r.verdict}" id="row-${r.row}" data-row="${r.row}">${verdictWord(r)}${alarm}<div class="counts">${r.method === 'induction' && r.states === 0 ? 'one tick, no states explored' : `${count(r.states)} states · ${count(r.transitions)} transitions`}${partial}</div><div class="counts">${r.method ? `${r.method === 'induction' ? 'induction' : r.search === 'ltl' ? 'temporal' : 'invariant'}, ` : ''}${r.seconds.toFixed(2)} s${r.reducedStates !== undefined ? ` · ${count(r.reducedStates)} up to symmetry` : ''}</div>${note}</td>`
 }
 
 /** A cutoff certificate: the theorem instance typeset, and the rules passed or the reasons. */

@@ -10,7 +10,8 @@ import {
 /**
  * The pool of parallel exploration workers (kernels/explore/parallel.ts): one Web Worker per core,
  * started ahead of the first run (nested workers may not start while this worker blocks) where
- * the page is cross-origin isolated; elsewhere rows are explored on this worker alone.
+ * the page is cross-origin isolated and the page's address asks for it (`?workers=N|auto`);
+ * elsewhere rows are explored on this worker alone.
  */
 let pool: Promise<ExplorePool | null> | null = null
 function explorePool(): Promise<ExplorePool | null> {
@@ -18,7 +19,11 @@ function explorePool(): Promise<ExplorePool | null> {
   return pool
 }
 async function startPool(): Promise<ExplorePool | null> {
-  const n = Math.min(16, navigator.hardwareConcurrency || 1)
+  // Opt-in: the page names this worker `twofold-kernel workers=N|auto` when asked (kernel.ts).
+  const asked = /workers=(auto|[0-9]+)/.exec(self.name)?.[1]
+  if (!asked) return null
+  const cores = navigator.hardwareConcurrency || 1
+  const n = Math.min(16, asked === 'auto' ? cores : Number(asked))
   if (n < 2 || typeof SharedArrayBuffer === 'undefined' || !globalThis.crossOriginIsolated || typeof Worker === 'undefined') return null
   // Smaller reservations than Node's: a browser tab's address space is shared with the page.
   const caps = { arena: 2 ** 30, table: 2 ** 28, stage: 2 ** 30, perState: 2 ** 27, job: 2 ** 24 }

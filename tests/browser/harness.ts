@@ -101,11 +101,11 @@ export async function startWorkbench(): Promise<Workbench> {
 }
 
 /** A fresh browser profile (empty IndexedDB) on the workbench, once its editors and checks are up. */
-export async function openPage(w: Workbench): Promise<{ context: BrowserContext; page: Page; errors: string[] }> {
+export async function openPage(w: Workbench, search = ''): Promise<{ context: BrowserContext; page: Page; errors: string[] }> {
   const context = await w.browser.newContext({ viewport: { width: 1400, height: 1000 }, acceptDownloads: true })
   const page = await context.newPage()
   const errors = watchErrors(page)
-  await page.goto(w.url)
+  await page.goto(w.url + search)
   await page.waitForSelector('.cm-editor')
   await page.waitForSelector('.check-line')
   return { context, page, errors }

@@ -54,7 +54,8 @@ describe('parallel exploration in the workbench', () => {
     const nb = analyzeNotebook(pumps)
     const want = runRow(nb, planRows(nb)[0])
     expect(want.verdict).toBe('holds')
-    const { context, page, errors } = await openPage(bench)
+    // The pool is opt-in (`?workers=auto`); without it the page explores on its one kernel worker.
+    const { context, page, errors } = await openPage(bench, '?workers=auto')
     await importText(page, 'pumps.md', pumps)
     await page.locator('.doc-title', { hasText: 'Orchard pumps' }).waitFor()
     await page.waitForSelector('.check-line button.run:not([disabled])')

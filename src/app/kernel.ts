@@ -32,7 +32,7 @@ function spawn(): { worker: Worker; api: Comlink.Remote<KernelApi> } {
 /** Both kernel workers and the stop control. */
 export class Kernel {
   private reader = spawn()
-  private runner = spawn()
+  private runner = this.watched(spawn())
   private stopFlag: Int32Array | null =
     typeof SharedArrayBuffer !== 'undefined' && globalThis.crossOriginIsolated ? new Int32Array(new SharedArrayBuffer(4)) : null
   private rejectRun: ((e: Error) => void) | null = null
@@ -81,6 +81,23 @@ export class Kernel {
     })
   }
 
+  /**
+   * A run worker whose failure is never a hang: an uncaught error in it (the solver's WebAssembly
+   * has been seen to fault inside its threads in Chromium, and then never answers) ends the row
+   * in progress with that error, and a fresh worker takes its place.
+   */
+  private watched(w: { worker: Worker; api: Comlink.Remote<KernelApi> }): { worker: Worker; api: Comlink.Remote<KernelApi> } {
+    w.worker.addEventListener('error', (e) => {
+      if (this.runner !== w || !this.rejectRun) return
+      e.preventDefault()
+      w.worker.terminate()
+      this.runner = this.watched(spawn())
+      this.rejectRun(new Error(`the kernel failed while running this row (${e.message || 'an error in the worker'}); it was restarted: run the check again`))
+      this.rejectRun = null
+    })
+    return w
+  }
+
   /** Stops the row that is running, if any. */
   stop(): void {
     if (this.stopFlag) {
@@ -89,7 +106,7 @@ export class Kernel {
     }
     if (this.rejectRun) {
       this.runner.worker.terminate()
-      this.runner = spawn()
+      this.runner = this.watched(spawn())
       this.rejectRun(new StoppedError())
       this.rejectRun = null
     }

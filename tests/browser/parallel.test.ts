@@ -5,6 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { analyzeNotebook } from '../../kernels/language/analyze'
 import { planRows, runRow } from '../../kernels/run'
 import { importText, openPage, startWorkbench, type Workbench } from './harness'
+import { PUMPS } from '../symmetry/fixtures'
 
 let bench: Workbench
 beforeAll(async () => { bench = await startWorkbench() })
@@ -13,31 +14,7 @@ afterAll(async () => { await bench?.close() })
 const pumps = `# Orchard pumps
 
 \`\`\`protocol
-protocol pumps {
-  const delay = 2
-  const patience = 2
-  const cap = 4
-  timing synchronous(delay: delay, idle: 1)
-  faults crash
-  message beat
-  state suspect[peer]: bool = false
-  state wait[peer]: 1..cap = patience
-  state quiet[peer]: 0..cap = 0
-  on beat from q {
-    quiet[q] := 0
-    if suspect[q] {
-      suspect[q] := false
-      wait[q] := min(wait[q] + 1, cap)
-    }
-  }
-  step {
-    broadcast beat
-    for q {
-      quiet[q] := min(quiet[q] + 1, cap)
-      if quiet[q] >= wait[q] { suspect[q] := true }
-    }
-  }
-}
+${PUMPS}
 \`\`\`
 
 \`\`\`property

@@ -13,6 +13,7 @@ import { compileInstance } from '../../kernels/model/instance'
 import { planRows, runRow } from '../../kernels/run'
 import type { CheckRow } from '../../kernels/result'
 import { generateNotebook, generateProperties } from '../reference/generate'
+import { PUMPS } from '../symmetry/fixtures'
 
 const WORKERS = [1, 2, 3]
 const SEEDS = 40
@@ -120,36 +121,7 @@ check beacons: bounded at N = 2
 \`\`\`
 `
 
-const pumps = `# Orchard pumps
-
-\`\`\`protocol
-protocol pumps {
-  const delay = 2
-  const patience = 2
-  const cap = 4
-  timing synchronous(delay: delay, idle: 1)
-  faults crash
-  message beat
-  state suspect[peer]: bool = false
-  state wait[peer]: 1..cap = patience
-  state quiet[peer]: 0..cap = 0
-  on beat from q {
-    quiet[q] := 0
-    if suspect[q] {
-      suspect[q] := false
-      wait[q] := min(wait[q] + 1, cap)
-    }
-  }
-  step {
-    broadcast beat
-    for q {
-      quiet[q] := min(quiet[q] + 1, cap)
-      if quiet[q] >= wait[q] { suspect[q] := true }
-    }
-  }
-}
-\`\`\`
-`
+const pumps = `# Orchard pumps\n\n\`\`\`protocol\n${PUMPS}\n\`\`\`\n`
 
 describe('buffers that grow during a search', () => {
   it('give the same search for 1, 2 and 3 workers (pumps at N = 3 within 40,000 states)', () => {

@@ -15,7 +15,8 @@ export interface BenchCase {
   bytesPerState: number
 }
 
-const pumps = (timing: string) => `# Orchard pumps
+/** The orchard pumps heartbeat detector under `timing` (shared by the explore and parallel cases). */
+export const pumps = (timing: string) => `# Orchard pumps
 
 \`\`\`protocol
 protocol pumps {

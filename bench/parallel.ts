@@ -7,6 +7,7 @@ import { analyzeNotebook } from '../kernels/language/analyze'
 import { exploreParallel, type ParallelJob } from '../kernels/explore/parallel'
 import { closeNodePools, cores, nodePool } from '../kernels/explore/pool-node'
 import { explore } from '../kernels/explore/reach'
+import { pumps } from './explore'
 import { compileInstance } from '../kernels/model/instance'
 import { rowInvariant } from '../kernels/explore/invariant'
 import { atomsOf } from '../kernels/language/formula'
@@ -35,33 +36,8 @@ export interface ParallelCase {
   loadAverage: number[]
 }
 
-const pumps = (timing: string) => `\`\`\`protocol
-protocol pumps {
-  const delay = 2
-  const patience = 2
-  const cap = 4
-  timing ${timing}
-  faults crash
-  message beat
-  state suspect[peer]: bool = false
-  state wait[peer]: 1..cap = patience
-  state quiet[peer]: 0..cap = 0
-  on beat from q {
-    quiet[q] := 0
-    if suspect[q] {
-      suspect[q] := false
-      wait[q] := min(wait[q] + 1, cap)
-    }
-  }
-  step {
-    broadcast beat
-    for q {
-      quiet[q] := min(quiet[q] + 1, cap)
-      if quiet[q] >= wait[q] { suspect[q] := true }
-    }
-  }
-}
-\`\`\`
+/** The pumps detector with its bound as an invariant row at N = 3. */
+const pumpsRow = (timing: string) => `${pumps(timing)}
 \`\`\`property
 property bounded = forall p, q: always p.wait[q] <= cap
 \`\`\`
@@ -71,7 +47,7 @@ check pumps: bounded at N = 3
 `
 
 function measure(name: string, timing: string, n: number, maxWorkers: number): ParallelCase {
-  const nb = analyzeNotebook(pumps(timing))
+  const nb = analyzeNotebook(pumpsRow(timing))
   const errors = nb.diagnostics.filter((d) => d.severity === 'error')
   if (errors.length > 0) throw new Error(`${errors[0].line}:${errors[0].column} ${errors[0].message}`)
   const protocol = nb.protocols[0]

@@ -22,7 +22,8 @@ export interface ReductionCase {
   speedup: number
 }
 
-const bells = `\`\`\`protocol
+/** Bells of our own (shared by the invariant and temporal reduction cases). */
+export const bells = `\`\`\`protocol
 protocol bells {
   const cap = 1
   timing synchronous(delay: 1, idle: 1)

@@ -12,6 +12,7 @@ import { checkLtl } from '../kernels/logic/product'
 import { compileInstance } from '../kernels/model/instance'
 import { compileTerm } from '../kernels/model/observe'
 import { reducedTemporal } from '../kernels/symmetry/temporal'
+import { bells } from './reduction'
 
 /** One temporal row, reduced and unreduced. */
 export interface TemporalReductionCase {
@@ -35,22 +36,7 @@ export interface TemporalReductionCase {
   speedup: number
 }
 
-const bells = `\`\`\`protocol
-protocol bells {
-  const cap = 1
-  timing synchronous(delay: 1, idle: 1)
-  faults crash
-  message ding
-  state rung: bool = false
-  state heard[peer]: 0..cap = 0
-  on ding from q { heard[q] := min(heard[q] + 1, cap) }
-  step {
-    rung := one of {true, false}
-    if rung { broadcast ding }
-  }
-}
-\`\`\`
-\`\`\`property
+const bellsChecked = `${bells}\`\`\`property
 property kept = forall p, q: always (p.heard[q] = 1 implies always p.heard[q] = 1)
 property lively = forall p: correct(p) implies always eventually alive(p)
 property told = forall p, q: correct(p) and correct(q) implies eventually p.heard[q] = 1
@@ -62,7 +48,7 @@ check bells: kept, lively, told at N = 5
 
 /** Bells at N = 5: two temporal rows that hold (two and one process fixed) and one violated. */
 export function temporalReductionCases(n = 5): TemporalReductionCase[] {
-  const nb = analyzeNotebook(bells)
+  const nb = analyzeNotebook(bellsChecked)
   const errors = nb.diagnostics.filter((d) => d.severity === 'error')
   if (errors.length > 0) throw new Error(`${errors[0].line}:${errors[0].column} ${errors[0].message}`)
   const protocol = nb.protocols[0]

@@ -10,7 +10,7 @@ import { join } from 'node:path'
 import type { Browser, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { runNotebook } from '../../kernels/api'
-import { CALM, FRESH, lanternsNotebook } from '../induction/fixtures'
+import { CALM, FRESH, LEDGER, lanternsNotebook } from '../induction/fixtures'
 import { ARTIFACTS, buildSite, importText, launch, removeSite, serve, watchErrors } from './harness'
 
 let site = ''
@@ -74,29 +74,6 @@ const lanterns = lanternsNotebook([CALM, FRESH], ['check lanterns: calm at N = 2
 
 /** Explored only: the same lanterns without `by induction`. */
 const explored = lanternsNotebook([CALM, FRESH], ['check lanterns: calm, fresh at N = 2']).replace('# Lanterns', '# Harbour lanterns explored')
-
-/** Cubes in 1..4000 with x^3 + y^3 = z^3: a question the solver works on for minutes (interrupt.test.ts). */
-const ledger = `# Quay ledgers
-
-\`\`\`protocol
-protocol ledger {
-  timing asynchronous
-  message note
-  state x: 1..4000 = any
-  state y: 1..4000 = any
-  state z: 1..4000 = any
-  step { x := x }
-}
-\`\`\`
-
-\`\`\`property
-property cubes = forall p: always p.x * p.x * p.x + p.y * p.y * p.y != p.z * p.z * p.z
-\`\`\`
-
-\`\`\`check
-check ledger: cubes at N = 1 by induction
-\`\`\`
-`
 
 describe('proof by induction in the workbench', () => {
   it('a page that only explores never downloads the solver', async () => {
@@ -163,7 +140,7 @@ describe('proof by induction in the workbench', () => {
   }, 300_000)
 
   it('Stop interrupts the solver: the row is inconclusive, never holds', async () => {
-    const { page, errors, done } = await openWith('ledger.md', ledger, 'Quay ledgers')
+    const { page, errors, done } = await openWith('ledger.md', LEDGER, 'Quay ledgers')
     await page.locator('.check-line button.run').first().click()
     // Once the worker has Z3, the solver works on the base question (for minutes, uninterrupted).
     const started = Date.now()

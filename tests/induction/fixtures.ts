@@ -48,3 +48,26 @@ export function lanternsNotebook(properties: string[], checks: string[]): string
 
 export const CALM = 'property calm = forall p, q: always (alive(q) implies not p.dark[q])'
 export const FRESH = 'property fresh = forall p, q: always (alive(p) and alive(q) implies p.quiet[q] <= 1 and (p.quiet[q] = 1 implies pending(glow, q -> p)))'
+
+/** Cubes in 1..4000 with x^3 + y^3 = z^3: a question the solver works on for minutes (Stop and Ctrl-C tests). */
+export const LEDGER = `# Quay ledgers
+
+\`\`\`protocol
+protocol ledger {
+  timing asynchronous
+  message note
+  state x: 1..4000 = any
+  state y: 1..4000 = any
+  state z: 1..4000 = any
+  step { x := x }
+}
+\`\`\`
+
+\`\`\`property
+property cubes = forall p: always p.x * p.x * p.x + p.y * p.y * p.y != p.z * p.z * p.z
+\`\`\`
+
+\`\`\`check
+check ledger: cubes at N = 1 by induction
+\`\`\`
+`

@@ -15,30 +15,9 @@ import { analyzeNotebook } from '../../kernels/language/analyze'
 import { planRows, runPlannedRow } from '../../kernels/run'
 import { main } from '../../src/cli/main'
 import { workspace } from '../cli/harness'
+import { LEDGER } from './fixtures'
 
 afterAll(async () => { await (await loadSolver()).close() })
-
-const LEDGER = `# Quay ledgers
-
-\`\`\`protocol
-protocol ledger {
-  timing asynchronous
-  message note
-  state x: 1..4000 = any
-  state y: 1..4000 = any
-  state z: 1..4000 = any
-  step { x := x }
-}
-\`\`\`
-
-\`\`\`property
-property cubes = forall p: always p.x * p.x * p.x + p.y * p.y * p.y != p.z * p.z * p.z
-\`\`\`
-
-\`\`\`check
-check ledger: cubes at N = 1 by induction
-\`\`\`
-`
 
 function ledgerModel() {
   const model = analyzeNotebook(LEDGER)

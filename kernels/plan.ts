@@ -60,8 +60,8 @@ export interface RunOptions {
    * only. Results are the same for any number. Used where a pool provider is registered.
    */
   workers?: number
-  /** Test hook: parallel worker `worker` (0-based) throws after expanding `after` sources. */
-  workerFault?: { worker: number; after: number }
+  /** Test hook: parallel worker `worker` (0-based) throws (with `exit`, ends its thread) after expanding `after` sources. */
+  workerFault?: { worker: number; after: number; exit?: boolean }
 }
 
 /** The rows of one property of one check: sizes (outer) times constant settings (inner, last sweep item fastest). */

@@ -34,8 +34,8 @@ export interface ParallelJob {
   constants: number[]
   /** The `always P` body with the property's atoms and the assignments checked, or null. */
   invariant: { formula: Formula; terms: Term[]; chosen: number[][] } | null
-  /** Test hook: worker `worker` throws after expanding `after` sources. */
-  fault?: { worker: number; after: number }
+  /** Test hook: worker `worker` throws (or, with `exit`, ends its thread without a word) after expanding `after` sources. */
+  fault?: { worker: number; after: number; exit?: boolean }
 }
 
 /** The shared buffers of a pool (structured-cloneable: only SharedArrayBuffers). */
@@ -59,6 +59,11 @@ export interface ExplorePool {
   start(): void
   /** The largest size of each buffer. */
   caps: BufferCaps
+  /**
+   * True once a worker of this pool has died without reporting (its thread ended: killed, out of
+   * memory). Such a pool is never used again; its provider makes a new one.
+   */
+  readonly dead?: boolean
   /**
    * Where workers can take new buffers between phases (Node: a message port read synchronously),
    * buffers are plain SharedArrayBuffers, replaced to grow: `buffers[name] = sab`, and the workers
@@ -91,7 +96,7 @@ export const MAX_POOL = 256
 
 // ctrl layout (Int32 words).
 export const C = {
-  GEN: 0, PHASE: 1, DONE: 2, NEXT: 3, RESERVE: 4, HALT: 5, OVERFLOW: 6, FAULT: 7, STOPREQ: 8,
+  GEN: 0, PHASE: 1, DONE: 2, NEXT: 3, RESERVE: 4, HALT: 5, OVERFLOW: 6, FAULT: 7, STOPREQ: 8, DEAD: 9,
   A: 10, B: 11, SIZE: 12, MASK: 13, MAXPEND: 14, ROOM: 15, JOBLEN: 16, BLOCK: 17, TLEN: 18,
   CLEAR_TO: 19, STAGE_FROM: 20, STAGE_TO: 21, ARENA_FROM: 22, ARENA_TO: 23, WORKERS: 24, READY: 25,
   BAR: 26, BARGEN: 27, SKIP: 28, FRESH: 29, ARENACAP: 30, EPOCH: 31,
@@ -157,6 +162,31 @@ export function exploreWith(inst: Instance, opts: ExploreOptions, workers: numbe
   if (!pool) return explore(inst, opts)
   return exploreParallel(inst, opts, job, pool)
 }
+
+/** Which worker died and what its host saw (the host writes both before it sets DEAD). */
+function deadMessage(ctrl: Int32Array, err: Uint8Array): string {
+  return `worker ${Atomics.load(ctrl, C.DEAD)} stopped: ${faultMessage(err)}`
+}
+
+/**
+ * What a pool's host calls when worker `index` ended without reporting (its thread exited, was
+ * killed or ran out of memory): the message is kept for the row, the search is halted, and every
+ * waiter (the coordinator, workers in a barrier) is woken to see it.
+ */
+export function reportDeath(buffers: SharedBuffers, index: number, why: string): void {
+  const ctrl = new Int32Array(buffers.ctrl)
+  const err = new Uint8Array(buffers.err)
+  const msg = new TextEncoder().encode(why).slice(0, err.length - 1)
+  if (Atomics.compareExchange(ctrl, C.DEAD, 0, index + 1) === 0) {
+    err.fill(0)
+    err.set(msg)
+  }
+  Atomics.store(ctrl, C.HALT, 1)
+  for (const word of [C.DONE, C.BARGEN]) Atomics.notify(ctrl, word)
+}
+
+/** Raised in a worker waiting in a barrier when another worker of the pool died. */
+class PoolDead extends Error {}
 
 /** The message a worker left in `err`. */
 function faultMessage(err: Uint8Array): string {
@@ -342,6 +372,8 @@ class ParallelSearch {
     for (;;) {
       const d = Atomics.load(ctrl, C.DONE)
       if (d >= this.P) break
+      // A worker whose thread ended (its host saw it exit) never reports: the search ends here.
+      if (Atomics.load(ctrl, C.DEAD) !== 0) throw new Error(`parallel exploration ${deadMessage(ctrl, this.err)}`)
       Atomics.wait(ctrl, C.DONE, d, 50)
       this.poll(kind)
     }
@@ -371,6 +403,7 @@ class ParallelSearch {
   /** Hands the search to the pool: each worker compiles its own instance and invariant from plain data. */
   private startPool(): boolean {
     const { pool, buf, ctrl } = this
+    if (Atomics.load(ctrl, C.DEAD) !== 0) throw new Error(`parallel exploration ${deadMessage(ctrl, this.err)}`)
     const jobBytes = new TextEncoder().encode(JSON.stringify(this.job))
     if (!this.grow('job', jobBytes.length)) return false
     pool.start()
@@ -640,7 +673,11 @@ function barrier(ctrl: Int32Array, P: number, last: () => void): void {
     }
     return
   }
-  while (Atomics.load(ctrl, C.BARGEN) === g) Atomics.wait(ctrl, C.BARGEN, g)
+  while (Atomics.load(ctrl, C.BARGEN) === g) {
+    // A dead worker never arrives: leave (the pool is not used again).
+    if (Atomics.load(ctrl, C.DEAD) !== 0) throw new PoolDead('another worker of the pool died')
+    Atomics.wait(ctrl, C.BARGEN, g, 200)
+  }
 }
 
 /**
@@ -794,7 +831,11 @@ function expandPhase(v: WorkerViews, index: number, job: CompiledJob, st: LevelS
       const off = s * W
       for (let k = 0; k < W; k++) src[k] = arena[off + k]
       seen.reset()
-      if (expanded++ === fault) throw new Error('test fault: this worker was told to fail')
+      if (expanded++ === fault) {
+        // The thread ends at once, as a killed worker's would (Node's worker_threads; elsewhere it throws).
+        if (job.fault!.exit) (globalThis as { process?: { exit(code: number): void } }).process?.exit(70)
+        throw new Error('test fault: this worker was told to fail')
+      }
       const err = inst.successors(src, 0, emit, bound)
       st.pushSeg()
       if (err || bound.interrupted) { Atomics.store(ctrl, C.HALT, 1); stop = true }

@@ -8,7 +8,7 @@ import { C, NODE_CAPS, PHASE, createSharedBuffers, setPoolProvider, type Explore
 /** A ctrl word past the phase protocol's, counting workers that have started. */
 const READY = C.READY
 
-interface NodePool extends ExplorePool { workers: Worker[] }
+interface NodePool extends ExplorePool { supervisor: Worker }
 const pools = new Map<number, NodePool>()
 
 /** The number of cores (the default of `--workers`). */
@@ -16,28 +16,37 @@ export function cores(): number {
   return availableParallelism()
 }
 
-/** The pool of n workers (made on first use, then kept; `start` waits until its threads are up). */
+/**
+ * The pool of n workers (made on first use, then kept; `start` waits until its threads are up).
+ * A pool one of whose workers died is ended and a new one made.
+ */
 export function nodePool(n: number): ExplorePool {
   const known = pools.get(n)
-  if (known) return known
+  if (known && !known.dead) return known
+  if (known) {
+    pools.delete(n)
+    void known.supervisor.terminate()
+  }
   // Plain buffers, replaced to grow: each worker takes the new ones from its port between phases.
   const buffers = createSharedBuffers(NODE_CAPS, false)
   const ctrl = new Int32Array(buffers.ctrl)
-  const workers: Worker[] = []
   const ports: MessagePort[] = []
-  // The threads load the kernel while the first levels run here; `start` waits for them.
+  const theirs: MessagePort[] = []
   for (let index = 0; index < n; index++) {
     const { port1, port2 } = new MessageChannel()
     ports.push(port1)
-    const w = new Worker(new URL('./parallel-node.mjs', import.meta.url), { workerData: { buffers, index, readyWord: READY, epochWord: C.EPOCH, port: port2 }, transferList: [port2] })
-    // Threads do not keep Node alive; they are ended with the process.
-    w.unref()
-    workers.push(w)
+    theirs.push(port2)
   }
+  // The threads load the kernel while the first levels run here; `start` waits for them. They
+  // are started by a supervising thread, which reports any of them that dies (supervisor-node.mjs).
+  const supervisor = new Worker(new URL('./supervisor-node.mjs', import.meta.url), { workerData: { buffers, n, ports: theirs }, transferList: theirs })
+  // Threads do not keep Node alive; they are ended with the process.
+  supervisor.unref()
   let started = false
   let epoch = 0
   const pool: NodePool = {
-    size: n, buffers, workers, caps: NODE_CAPS,
+    size: n, buffers, supervisor, caps: NODE_CAPS,
+    get dead() { return Atomics.load(ctrl, C.DEAD) !== 0 },
     replace(name, sab) {
       buffers[name] = sab
       epoch++
@@ -51,6 +60,7 @@ export function nodePool(n: number): ExplorePool {
       for (;;) {
         const ready = Atomics.load(ctrl, READY)
         if (ready >= n) break
+        if (Atomics.load(ctrl, C.DEAD) !== 0) throw new Error(`a parallel exploration worker did not start (worker ${Atomics.load(ctrl, C.DEAD)})`)
         if (Date.now() > deadline) throw new Error(`parallel exploration workers did not start (${ready} of ${n} within two minutes)`)
         Atomics.wait(ctrl, READY, ready, 1000)
       }
@@ -73,7 +83,7 @@ export async function closeNodePools(): Promise<void> {
     Atomics.store(ctrl, C.PHASE, PHASE.QUIT)
     Atomics.add(ctrl, C.GEN, 1)
     Atomics.notify(ctrl, C.GEN)
-    await Promise.all(pool.workers.map((w) => w.terminate()))
+    await pool.supervisor.terminate()
   }
   pools.clear()
 }

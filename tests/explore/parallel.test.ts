@@ -154,4 +154,20 @@ describe('a worker that fails', () => {
     const again = runRow(nb, plan, { workers: 2 })
     expect({ ...again, seconds: 0 }).toEqual({ ...ok, seconds: 0 })
   })
+
+  it('that dies without a word (its thread ends) makes the row error, never a partial holds, and a new pool takes its place', () => {
+    parallelTuning.minFrontier = 0
+    const nb = analyzeNotebook(beacons)
+    const [plan] = planRows(nb)
+    const ok = runRow(nb, plan)
+    const before = nodePool(2)
+    const bad = runRow(nb, plan, { workers: 2, workerFault: { worker: 1, after: 3, exit: true } })
+    expect(bad.verdict).toBe('error')
+    expect(bad.complete).toBe(false)
+    expect(bad.note).toContain('parallel exploration worker 2 stopped: its thread ended (exit code 70)')
+    expect(before.dead).toBe(true)
+    const again = runRow(nb, plan, { workers: 2 })
+    expect(nodePool(2)).not.toBe(before)
+    expect({ ...again, seconds: 0 }).toEqual({ ...ok, seconds: 0 })
+  })
 })

@@ -1,7 +1,10 @@
 // Parallel exploration (kernels/explore/parallel.ts) on a heartbeat detector of our own (orchard
 // pumps, synchronous, crash faults) at N = 3, with its invariant: the sequential explorer as the
-// in-process baseline, then 1..cores workers. Each setting is warmed up once, then run twice and the
-// faster run kept (the machine is shared); every run must give the baseline's states and transitions.
+// in-process baseline, then 1..cores workers. Each setting is warmed up once; then the settings are
+// run in turns, ROUNDS times (1, 2, ..., cores, 1, 2, ...), so that a change in the machine's load
+// (it is shared) falls on all of them alike. A setting's time is its median; its speedup is the
+// median over the rounds of (one worker's time / its time) in the same round, with the smallest
+// and largest beside it. Every run must give the baseline's states and transitions.
 import { loadavg } from 'node:os'
 import { analyzeNotebook } from '../kernels/language/analyze'
 import { exploreParallel, type ParallelJob } from '../kernels/explore/parallel'
@@ -17,8 +20,10 @@ export interface ParallelRun {
   workers: number
   seconds: number
   statesPerSecond: number
-  /** Against one worker of the parallel explorer (goal for two workers: at least 1.6). */
+  /** Against one worker of the parallel explorer, the median over the rounds (goal for two workers: at least 1.6). */
   speedup: number
+  /** The smallest and largest of the rounds' speedups. */
+  speedupRange: [number, number]
   /** Against the sequential explorer. */
   overSequential: number
 }
@@ -30,6 +35,8 @@ export interface ParallelCase {
   transitions: number
   cores: number
   sequentialSeconds: number
+  /** Rounds of runs in turns. */
+  rounds: number
   runs: ParallelRun[]
   /** When it was measured (UTC) and the load average then: the machine is shared. */
   measuredAt: string
@@ -65,27 +72,44 @@ function measure(name: string, timing: string, n: number, maxWorkers: number): P
   const again = explore(inst, { invariant })
   if (again.seconds < seq.seconds) seq = again
   if (!seq.complete) throw new Error(`${name}: the invariant did not hold`)
-  const runs: ParallelRun[] = []
-  let one = 0
-  for (let w = 1; w <= maxWorkers; w++) {
+  const settings = Array.from({ length: maxWorkers }, (_, i) => i + 1)
+  const pools = settings.map((w) => {
     const pool = nodePool(w)
     pool.start()
     exploreParallel(inst, { invariant }, job, pool) // warm-up: each worker compiles its hot loops once
-    let best = Infinity
-    for (let k = 0; k < 2; k++) {
-      const r = exploreParallel(inst, { invariant }, job, pool)
+    return pool
+  })
+  // times[round][setting]
+  const times: number[][] = []
+  for (let k = 0; k < ROUNDS; k++) {
+    times.push(settings.map((w, i) => {
+      const r = exploreParallel(inst, { invariant }, job, pools[i])
       if (r.states !== seq.states || r.transitions !== seq.transitions || !r.complete) {
         throw new Error(`${name}: ${w} workers found ${r.states} states and ${r.transitions} transitions, not ${seq.states} and ${seq.transitions}`)
       }
-      best = Math.min(best, r.seconds)
-    }
-    if (w === 1) one = best
-    runs.push({ workers: w, seconds: best, statesPerSecond: seq.states / best, speedup: one / best, overSequential: seq.seconds / best })
+      return r.seconds
+    }))
   }
+  const runs: ParallelRun[] = settings.map((w, i) => {
+    const seconds = median(times.map((t) => t[i]))
+    const ratios = times.map((t) => t[0] / t[i])
+    return {
+      workers: w, seconds, statesPerSecond: seq.states / seconds, speedup: median(ratios),
+      speedupRange: [Math.min(...ratios), Math.max(...ratios)], overSequential: seq.seconds / seconds,
+    }
+  })
   return {
-    name, processes: n, states: seq.states, transitions: seq.transitions, cores: cores(), sequentialSeconds: seq.seconds, runs,
+    name, processes: n, states: seq.states, transitions: seq.transitions, cores: cores(), sequentialSeconds: seq.seconds, rounds: ROUNDS, runs,
     measuredAt: new Date().toISOString(), loadAverage: loadavg(),
   }
+}
+
+const ROUNDS = 7
+
+function median(xs: number[]): number {
+  const s = [...xs].sort((a, b) => a - b)
+  const m = s.length >> 1
+  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2
 }
 
 /** Scaling for 1..cores workers (at least 2, so the two-worker goal is always measured). */

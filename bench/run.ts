@@ -73,10 +73,10 @@ if (json) {
   for (const c of temporalReduction) {
     console.log(`  ${c.name.padEnd(48)} N=${c.processes} ${c.fixed} fixed  ${f(c.representatives).padStart(9)} representatives for ${f(c.orbitTotal)} of ${f(c.states)} states  ${f(c.productNodes)} vs ${f(c.unreducedProductNodes)} product nodes  holds=${c.holds}  ${c.reducedSeconds.toFixed(2)} s against ${c.unreducedSeconds.toFixed(2)} s = ${c.speedup.toFixed(2)}x`)
   }
-  console.log('Parallel exploration (states per second; goal: two workers at least 1.6x one)')
+  console.log('Parallel exploration (states per second; median of rounds run in turns; goal: two workers at least 1.6x one)')
   for (const c of parallel) {
-    console.log(`  ${c.name.padEnd(48)} N=${c.processes}  ${f(c.states).padStart(9)} states  sequential ${c.sequentialSeconds.toFixed(2)} s  (${c.cores} cores, load ${c.loadAverage.map((x) => x.toFixed(1)).join(' ')} at ${c.measuredAt})`)
-    for (const r of c.runs) console.log(`    ${String(r.workers).padStart(3)} worker${r.workers === 1 ? ' ' : 's'}  ${r.seconds.toFixed(2)} s  ${f(r.statesPerSecond).padStart(10)} states/s  ${r.speedup.toFixed(2)}x one worker  ${r.overSequential.toFixed(2)}x sequential`)
+    console.log(`  ${c.name.padEnd(48)} N=${c.processes}  ${f(c.states).padStart(9)} states  sequential ${c.sequentialSeconds.toFixed(2)} s  ${c.rounds} rounds  (${c.cores} cores, load ${c.loadAverage.map((x) => x.toFixed(1)).join(' ')} at ${c.measuredAt})`)
+    for (const r of c.runs) console.log(`    ${String(r.workers).padStart(3)} worker${r.workers === 1 ? ' ' : 's'}  ${r.seconds.toFixed(2)} s  ${f(r.statesPerSecond).padStart(10)} states/s  ${r.speedup.toFixed(2)}x one worker (rounds ${r.speedupRange[0].toFixed(2)}-${r.speedupRange[1].toFixed(2)})  ${r.overSequential.toFixed(2)}x sequential`)
   }
   console.log('Parse and check')
   for (const pc of parse.cases) console.log(`  ${pc.name}: ${pc.lines} lines in ${pc.seconds.toFixed(3)} s = ${f(pc.linesPerSecond)} lines/s (${pc.diagnostics} diagnostics)`)

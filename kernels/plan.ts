@@ -60,6 +60,12 @@ export interface RunOptions {
    * only. Results are the same for any number. Used where a pool provider is registered.
    */
   workers?: number
+  /**
+   * Told, for each row that explored, how many threads took part in its exploration: 1 for the
+   * routes the parallel explorer does not take (temporal and symmetry-reduced rows) and for
+   * searches whose levels never grew wide enough to share, else the pool's size.
+   */
+  onExplored?: (row: number, workers: number) => void
   /** Test hook: parallel worker `worker` (0-based) throws (with `exit`, ends its thread) after expanding `after` sources. */
   workerFault?: { worker: number; after: number; exit?: boolean }
 }

@@ -246,6 +246,7 @@ function runReducedInvariant(route: Route, inv: Formula): boolean {
   const fixed = route.chosen[0]
   const rr = explore(inst, { limit, shouldStop: opts.shouldStop, onProgress: route.progress, invariant: invariantTest(route, inv).test, canonicalize: canonicalizer(inst, fixed), memoryBudget: opts.memoryBudget })
   if (rr.outcome !== 'ok') return false
+  opts.onExplored?.(row.row, 1)
   row.method = 'exploration'
   row.search = 'invariant'
   row.assignment = named(prop, fixed)
@@ -274,6 +275,7 @@ function exploreRow(route: Route, search: 'invariant' | 'ltl', invariant?: (w: U
   const r = search === 'invariant' && route.inv
     ? exploreWith(inst, eo, opts.workers, { protocol: route.protocol, n: inst.n, constants: route.constants, invariant: { formula: route.inv, terms: route.terms, chosen: route.chosen }, fault: opts.workerFault })
     : explore(inst, eo)
+  opts.onExplored?.(row.row, r.workers ?? 1)
   row.states = r.states
   row.transitions = r.transitions
   row.method = 'exploration'
@@ -433,6 +435,7 @@ function runReducedTemporal(route: Route, ltl: Ltl, automaton: Automaton): boole
     row.note = `explored without symmetry reduction: ${rt.reason}`
     return false
   }
+  opts.onExplored?.(row.row, 1)
   if (rt.kind === 'decided' && !rt.holds) {
     row.note = 'the symmetry-reduced search found a fair run that violates the property; the counterexample is from the search without reduction'
     return 'violated'

@@ -468,6 +468,7 @@ class ParallelSearch {
   private handover(): ExploreResult {
     const r = explore(this.inst, { ...this.opts, resume: { store: this.storeOf(), levelStart: this.levelStart, head: this.a, transitions: this.transitions } })
     r.seconds = (performance.now() - this.t0) / 1000
+    r.workers = this.P
     return r
   }
 
@@ -476,7 +477,7 @@ class ParallelSearch {
     const size = this.size
     return {
       states: size, transitions: this.transitions, complete, stopped: !complete, limitHit: false, memoryHit: false, outcome: 'ok', trace: null, error: null, store,
-      seconds: (performance.now() - this.t0) / 1000, bytesPerState: size > 0 ? store.bytes / size : 0,
+      seconds: (performance.now() - this.t0) / 1000, bytesPerState: size > 0 ? store.bytes / size : 0, workers: this.P,
     }
   }
 }

@@ -99,6 +99,8 @@ export interface ExploreResult {
   seconds: number
   /** Bytes held by the store (arena and hash table) per state. */
   bytesPerState: number
+  /** Threads that took part (explore/parallel.ts); absent: this thread alone. */
+  workers?: number
 }
 
 /**

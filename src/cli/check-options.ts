@@ -25,6 +25,7 @@ export interface OutputFlags {
   shard?: string
   shards?: string
   workers?: string
+  recomputeEdges?: boolean
   output?: string
   quiet?: boolean
   color?: string | boolean
@@ -34,6 +35,8 @@ export interface OutputFlags {
 export interface CheckOptions {
   shard: Shard | undefined
   workers: number | undefined
+  /** Temporal rows keep no fair graph and recompute its rows on demand (less memory, slower). */
+  recomputeEdges: boolean
   format: ReportFormat
   output: string | undefined
   quiet: boolean
@@ -97,6 +100,7 @@ export function resolveCheckOptions(io: CliIo, notebook: string | undefined, fla
     format: format(flags),
     shard: shard(io, flags),
     workers: workers(flags),
+    recomputeEdges: Boolean(flags.recomputeEdges),
     output: output(io, notebook, flags),
     quiet: Boolean(flags.quiet),
     color: useColor(mode, environment(io), Boolean(io.stdoutIsTTY)),

@@ -55,8 +55,11 @@ export async function runCheck(io: CliIo, loadKernel: () => Promise<RecordKernel
   // as one; the pool starts only when a search has a level wide enough to share.
   useNodePools()
   const ctrlC = interruptOnCtrlC(io)
+  const threads = { workers: options.workers ?? cores(), rows: new Map<number, number>() }
   const run: RunOptions = {
-    only: flags.only, shard, workers: options.workers ?? cores(), onProgress: (p) => progress.report(p),
+    only: flags.only, shard, workers: threads.workers, onProgress: (p) => progress.report(p),
+    onExplored: (row, workers) => { threads.rows.set(row, workers) },
+    recomputeEdges: options.recomputeEdges || undefined,
     shouldStop: ctrlC.requested, onWait: ctrlC.onWait,
   }
   let report
@@ -79,6 +82,6 @@ export async function runCheck(io: CliIo, loadKernel: () => Promise<RecordKernel
   }
 
   const code = checkExitCode(report)
-  await emitReport(io, options, report, model, code, flags.record)
+  await emitReport(io, options, report, model, code, flags.record, threads)
   return code
 }

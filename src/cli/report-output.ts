@@ -32,8 +32,21 @@ function printTable(io: CliIo, report: Report, model: NotebookModel, path: strin
   io.stdout(renderReport(report, color ? { paint: paintVerdict } : {}))
 }
 
+/** How many threads explored each row (`RunOptions.onExplored`), and how many were asked for. */
+export interface ThreadUse { workers: number; rows: Map<number, number> }
+
+/** One line saying which rows used more than one thread, when more were asked for; else null. */
+export function threadLine(t: ThreadUse): string | null {
+  if (t.workers <= 1 || t.rows.size === 0) return null
+  const shared = [...t.rows.values()].filter((w) => w > 1).length
+  const alone = t.rows.size - shared
+  const rows = (k: number) => `${k} row${k === 1 ? '' : 's'}`
+  if (alone === 0) return `explored on ${t.workers} workers: ${rows(shared)}`
+  return `explored on ${t.workers} workers: ${rows(shared)}; on one: ${rows(alone)} (temporal and symmetry-reduced rows, and searches too small to share, explore on one)`
+}
+
 /** Prints or writes the report of a finished `twofold check` as `options` say. */
-export async function emitReport(io: CliIo, options: CheckOptions, report: Report, model: NotebookModel, exitCode: number, record: string | undefined): Promise<void> {
+export async function emitReport(io: CliIo, options: CheckOptions, report: Report, model: NotebookModel, exitCode: number, record: string | undefined, threads?: ThreadUse): Promise<void> {
   const path = report.notebook.path
   if (options.output !== undefined) await writeOutput(io, options.output, formatReport(options.format, report, model, exitCode), 'report', REFUSED)
   if (options.quiet) return
@@ -42,6 +55,7 @@ export async function emitReport(io: CliIo, options: CheckOptions, report: Repor
     return
   }
   printTable(io, report, model, path, options.color)
+  if (threads) { const line = threadLine(threads); if (line) io.stdout(line + '\n') }
   if (record !== undefined) io.stdout(`record written to ${record}\n`)
   if (options.output !== undefined) io.stdout(`report (${options.format}) written to ${options.output}\n`)
 }

@@ -94,15 +94,20 @@ export function setPoolProvider(p: PoolProvider | null): void {
 /** The most workers a pool can have (`--workers` accepts 1..256). */
 export const MAX_POOL = 256
 
-// ctrl layout (Int32 words).
+// ctrl layout (Int32 words). The two counters every worker adds to during a level (NEXT, the block
+// counter; RESERVE, the staging slots) each have a cache line (16 words) of their own, so that
+// their traffic does not evict the words the workers read (HALT, STOPREQ, the level's bounds).
 export const C = {
-  GEN: 0, PHASE: 1, DONE: 2, NEXT: 3, RESERVE: 4, HALT: 5, OVERFLOW: 6, FAULT: 7, STOPREQ: 8, DEAD: 9,
+  GEN: 0, PHASE: 1, DONE: 2, HALT: 5, OVERFLOW: 6, FAULT: 7, STOPREQ: 8, DEAD: 9,
   A: 10, B: 11, SIZE: 12, MASK: 13, MAXPEND: 14, ROOM: 15, JOBLEN: 16, BLOCK: 17, TLEN: 18,
   CLEAR_TO: 19, STAGE_FROM: 20, STAGE_TO: 21, ARENA_FROM: 22, ARENA_TO: 23, WORKERS: 24, READY: 25,
   BAR: 26, BARGEN: 27, SKIP: 28, FRESH: 29, ARENACAP: 30, EPOCH: 31,
-  TRANS: 32, PUB: 32 + MAX_POOL, WIDEST: 32 + 2 * MAX_POOL,
+  NEXT: 32, RESERVE: 48,
+  TRANS: 64, PUB: 64 + MAX_POOL, WIDEST: 64 + 2 * MAX_POOL,
 } as const
-const CTRL_WORDS = 32 + 3 * MAX_POOL
+const CTRL_WORDS = 64 + 3 * MAX_POOL
+/** Staging slots a worker reserves at a time (one atomic add per batch, not per new state). */
+const SPARE_BATCH = 32
 export const PHASE = { JOB: 1, CLEAR: 2, REHASH: 3, LEVEL: 4, QUIT: 7 } as const
 /** Sources per block of work. */
 const BLOCK = 32
@@ -165,8 +170,11 @@ export function exploreWith(inst: Instance, opts: ExploreOptions, workers: numbe
 
 /** Which worker died and what its host saw (the host writes both before it sets DEAD). */
 function deadMessage(ctrl: Int32Array, err: Uint8Array): string {
-  return `worker ${Atomics.load(ctrl, C.DEAD)} stopped: ${faultMessage(err)}`
+  return `worker ${Atomics.load(ctrl, C.DEAD)} stopped: ${faultMessage(err.subarray(DEATH_AT))}`
 }
+
+/** Where in `err` a host writes why a worker died (the first half is a thrown fault's message). */
+const DEATH_AT = 2048
 
 /**
  * What a pool's host calls when worker `index` ended without reporting (its thread exited, was
@@ -175,7 +183,7 @@ function deadMessage(ctrl: Int32Array, err: Uint8Array): string {
  */
 export function reportDeath(buffers: SharedBuffers, index: number, why: string): void {
   const ctrl = new Int32Array(buffers.ctrl)
-  const err = new Uint8Array(buffers.err)
+  const err = new Uint8Array(buffers.err).subarray(DEATH_AT)
   const msg = new TextEncoder().encode(why).slice(0, err.length - 1)
   if (Atomics.compareExchange(ctrl, C.DEAD, 0, index + 1) === 0) {
     err.fill(0)
@@ -503,7 +511,7 @@ function u32(sab: SharedArrayBuffer): Uint32Array { return new Uint32Array(sab, 
 /** Writes a fault message for the coordinator. */
 export function reportFault(buffers: SharedBuffers, index: number, e: unknown): void {
   const ctrl = new Int32Array(buffers.ctrl)
-  const err = new Uint8Array(buffers.err)
+  const err = new Uint8Array(buffers.err).subarray(0, DEATH_AT)
   const msg = new TextEncoder().encode(e instanceof Error ? e.message : String(e)).slice(0, err.length - 1)
   if (Atomics.compareExchange(ctrl, C.FAULT, 0, index + 1) === 0) {
     err.fill(0)
@@ -558,7 +566,8 @@ export function serveExploration(buffers: SharedBuffers, index: number, compile:
         case PHASE.LEVEL: levelPhase(v, index, ctrl[C.WORKERS], job!, state!); break
       }
     } catch (e) {
-      reportFault(buffers, index, e)
+      // A worker that left a barrier because another died has nothing of its own to report.
+      if (!(e instanceof PoolDead)) reportFault(buffers, index, e)
     }
     if (Atomics.add(ctrl, C.DONE, 1) + 1 >= ctrl[C.WORKERS]) Atomics.notify(ctrl, C.DONE)
   }
@@ -726,10 +735,11 @@ function levelPhase(v: WorkerViews, index: number, P: number, job: CompiledJob, 
 }
 
 function reportFaultOn(v: WorkerViews, index: number, e: unknown): void {
-  const msg = new TextEncoder().encode(e instanceof Error ? e.message : String(e)).slice(0, v.err.length - 1)
+  const err = v.err.subarray(0, DEATH_AT)
+  const msg = new TextEncoder().encode(e instanceof Error ? e.message : String(e)).slice(0, err.length - 1)
   if (Atomics.compareExchange(v.ctrl, C.FAULT, 0, index + 1) === 0) {
-    v.err.fill(0)
-    v.err.set(msg)
+    err.fill(0)
+    err.set(msg)
   }
   Atomics.store(v.ctrl, C.HALT, 1)
 }
@@ -747,7 +757,9 @@ function expandPhase(v: WorkerViews, index: number, job: CompiledJob, st: LevelS
   const seen = new Seen()
   let transitions = 0
   let published = 0
-  let spare = -1
+  // This worker's reserved staging slots not used yet: [spare, spareEnd).
+  let spare = 0
+  let spareEnd = 0
   let s = 0
   let stop = false
   let expanded = 0
@@ -762,10 +774,12 @@ function expandPhase(v: WorkerViews, index: number, job: CompiledJob, st: LevelS
       let e = table[slot]
       if (e <= 0) e = Atomics.load(table, slot)
       if (e === 0) {
-        if (spare < 0) {
-          spare = Atomics.add(ctrl, C.RESERVE, 1)
-          if (spare >= maxPend) { Atomics.store(ctrl, C.OVERFLOW, 1); Atomics.store(ctrl, C.HALT, 2); stop = true; spare = -1; return true }
-          slotOf[spare] = -1
+        if (spare === spareEnd) {
+          spare = Atomics.add(ctrl, C.RESERVE, SPARE_BATCH)
+          if (spare >= maxPend) { Atomics.store(ctrl, C.OVERFLOW, 1); Atomics.store(ctrl, C.HALT, 2); stop = true; spare = spareEnd = 0; return true }
+          spareEnd = Math.min(maxPend, spare + SPARE_BATCH)
+          // Unused slots stay unpublished (-1): an undone level clears published ones only.
+          slotOf.fill(-1, spare, spareEnd)
         }
         const base = spare * W
         for (let k = 0; k < W; k++) stage[base + k] = succ[k]
@@ -773,7 +787,7 @@ function expandPhase(v: WorkerViews, index: number, job: CompiledJob, st: LevelS
         if (Atomics.compareExchange(table, slot, 0, -(spare + 1)) === 0) {
           slotOf[spare] = slot
           id = -(spare + 1)
-          spare = -1
+          spare++
           fresh = true
           break
         }

@@ -271,10 +271,14 @@ function runReducedInvariant(route: Route, inv: Formula): boolean {
 function exploreRow(route: Route, search: 'invariant' | 'ltl', invariant?: (w: Uint32Array, o: number) => boolean, edges?: FairGraphRecorder): { r: ExploreResult; decided: boolean } {
   const { row, prop, inst, limit, opts } = route
   const eo = { limit, shouldStop: opts.shouldStop, onProgress: route.progress, invariant, edges, memoryBudget: opts.memoryBudget }
-  // Invariant rows run on `opts.workers` workers where a pool is available (explore/parallel.ts).
+  // Invariant rows, and temporal rows recording their fair graph, run on `opts.workers` workers
+  // where a pool is available (explore/parallel.ts); the results are the same as on one.
+  const job = { protocol: route.protocol, n: inst.n, constants: route.constants, fault: opts.workerFault }
   const r = search === 'invariant' && route.inv
-    ? exploreWith(inst, eo, opts.workers, { protocol: route.protocol, n: inst.n, constants: route.constants, invariant: { formula: route.inv, terms: route.terms, chosen: route.chosen }, fault: opts.workerFault })
-    : explore(inst, eo)
+    ? exploreWith(inst, eo, opts.workers, { ...job, invariant: { formula: route.inv, terms: route.terms, chosen: route.chosen } })
+    : search === 'ltl' && edges && !edges.abandoned
+      ? exploreWith(inst, eo, opts.workers, { ...job, invariant: null, edges: true })
+      : explore(inst, eo)
   opts.onExplored?.(row.row, r.workers ?? 1)
   row.states = r.states
   row.transitions = r.transitions

@@ -73,7 +73,7 @@ export function fairMarks(inst: Instance): FairMarks {
  * same target with other marks (other processes stepping) is a separate edge. Open addressing
  * with slots invalidated by a stamp, so a new row costs nothing.
  */
-class RowSet {
+export class RowSet {
   private targets = new Int32Array(64)
   private marks = new Int32Array(64)
   private stamps = new Int32Array(64)
@@ -176,6 +176,16 @@ export class FairGraphRecorder implements EdgeRecorder {
     this.start.push(this.target.length)
     this.base = this.fm.sourceMarks(src, 0)
     this.row.reset()
+  }
+
+  /**
+   * One edge of the current source whose marks were computed elsewhere (the parallel explorer's
+   * workers), already distinct in its row: as `edge` with the same marks would record it.
+   */
+  markedEdge(target: number, marks: number): void {
+    if (!this.start) return
+    this.target.push(target)
+    this.marks.push(marks)
   }
 
   edge(target: number, dst: Uint32Array, stepped: number, receivedFrom: number): void {

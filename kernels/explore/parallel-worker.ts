@@ -2,6 +2,7 @@
 // Workers): compiles a job's instance with the kernel's instance compiler and the row's invariant
 // as the runner builds it, then serves the phases of parallel.ts until told to quit.
 import { compileInstance } from '../model/instance'
+import { fairMarks } from './fairgraph'
 import { rowInvariant } from './invariant'
 import { serveExploration, type CompiledJob, type ParallelJob, type SharedBuffers } from './parallel'
 
@@ -9,7 +10,7 @@ import { serveExploration, type CompiledJob, type ParallelJob, type SharedBuffer
 export function compileJob(job: ParallelJob): CompiledJob {
   const inst = compileInstance(job.protocol, job.n, job.constants)
   const invariant = job.invariant ? rowInvariant(inst, job.invariant.formula, job.invariant.terms, job.invariant.chosen).invariant : undefined
-  return { inst, invariant, fault: job.fault }
+  return { inst, invariant, marks: job.edges ? fairMarks(inst) : undefined, fault: job.fault }
 }
 
 /** Serves explorations on `buffers` as worker `index` (blocks this thread); `refresh` takes replaced buffers. */

@@ -26,6 +26,8 @@ import type { Instance } from '../model/instance'
 import type { Formula, ProtocolModel, Term } from '../language/model'
 import { explore, type ExploreOptions, type ExploreResult } from './reach'
 import { StateStore, hashWords } from '../base/stateset'
+import { RowSet, fairMarks, type FairMarks } from './fairgraph'
+import type { EdgeRecorder } from './reach'
 
 /** What a worker needs to rebuild the instance and the invariant (plain data). */
 export interface ParallelJob {
@@ -34,6 +36,8 @@ export interface ParallelJob {
   constants: number[]
   /** The `always P` body with the property's atoms and the assignments checked, or null. */
   invariant: { formula: Formula; terms: Term[]; chosen: number[][] } | null
+  /** Record every edge with its fairness marks (a temporal row's fair graph, fed to `ExploreOptions.edges`). */
+  edges?: boolean
   /** Test hook: worker `worker` throws (or, with `exit`, ends its thread without a word) after expanding `after` sources. */
   fault?: { worker: number; after: number; exit?: boolean }
 }
@@ -49,6 +53,10 @@ export interface SharedBuffers {
   minSrc: SharedArrayBuffer
   slotOf: SharedArrayBuffer
   blocks: SharedArrayBuffer
+  /** Recorded edges: (target or pending id, marks) pairs, one region per worker. */
+  edges: SharedArrayBuffer
+  /** Per level: each source's edge count, then each block's worker and first edge in its region. */
+  rows: SharedArrayBuffer
 }
 
 /** A started pool: `size` workers serving `buffers` (see `serveExploration`). */
@@ -74,14 +82,17 @@ export interface ExplorePool {
 }
 
 /** The buffers that grow. */
-export type BufferName = 'job' | 'table' | 'arena' | 'stage' | 'minSrc' | 'slotOf' | 'blocks'
+export type BufferName = 'job' | 'table' | 'arena' | 'stage' | 'minSrc' | 'slotOf' | 'blocks' | 'edges' | 'rows'
 
 /**
  * Levels narrower than `minFrontier` sources are expanded on the coordinator's thread with the
  * same code (a tiny search never starts the workers, and the first levels cost no wake-ups).
  * Tests set it to 0 to run every level on the workers.
  */
-export const parallelTuning = { minFrontier: 2048 }
+export const parallelTuning = { minFrontier: 2048, edgesPerSource: 16 }
+
+/** Counts for tests: levels expanded again because a worker's edge region was too small. */
+export const parallelCounters = { edgeRedos: 0 }
 
 /** Where pools come from: Node (pool-node.ts) and the workbench register their own. */
 export type PoolProvider = (workers: number) => ExplorePool | null
@@ -102,7 +113,7 @@ export const C = {
   A: 10, B: 11, SIZE: 12, MASK: 13, MAXPEND: 14, ROOM: 15, JOBLEN: 16, BLOCK: 17, TLEN: 18,
   CLEAR_TO: 19, STAGE_FROM: 20, STAGE_TO: 21, ARENA_FROM: 22, ARENA_TO: 23, WORKERS: 24, READY: 25,
   BAR: 26, BARGEN: 27, SKIP: 28, FRESH: 29, ARENACAP: 30, EPOCH: 31,
-  NEXT: 32, RESERVE: 48,
+  NEXT: 32, RESERVE: 48, EDGEOVER: 49, EDGECAP: 50,
   TRANS: 64, PUB: 64 + MAX_POOL, WIDEST: 64 + 2 * MAX_POOL,
 } as const
 const CTRL_WORDS = 64 + 3 * MAX_POOL
@@ -124,7 +135,7 @@ export const NODE_CAPS: BufferCaps = { arena: 2 ** 31, table: 2 ** 30, stage: 2 
 export function createSharedBuffers(caps: BufferCaps = NODE_CAPS, growable = true): SharedBuffers {
   if (!growable) {
     const b = () => new SharedArrayBuffer(65536)
-    return { ctrl: new SharedArrayBuffer(CTRL_WORDS * 4), err: new SharedArrayBuffer(4096), job: b(), table: b(), arena: b(), stage: b(), minSrc: b(), slotOf: b(), blocks: b() }
+    return { ctrl: new SharedArrayBuffer(CTRL_WORDS * 4), err: new SharedArrayBuffer(4096), job: b(), table: b(), arena: b(), stage: b(), minSrc: b(), slotOf: b(), blocks: b(), edges: b(), rows: b() }
   }
   return {
     ctrl: new SharedArrayBuffer(CTRL_WORDS * 4),
@@ -136,6 +147,8 @@ export function createSharedBuffers(caps: BufferCaps = NODE_CAPS, growable = tru
     minSrc: new Growable(0, { maxByteLength: caps.perState }),
     slotOf: new Growable(0, { maxByteLength: caps.perState }),
     blocks: new Growable(0, { maxByteLength: caps.perState }),
+    edges: new Growable(0, { maxByteLength: caps.stage }),
+    rows: new Growable(0, { maxByteLength: caps.perState }),
   }
 }
 
@@ -162,7 +175,9 @@ function tableFor(states: number): number {
  * with one worker, `explore` itself.
  */
 export function exploreWith(inst: Instance, opts: ExploreOptions, workers: number | undefined, job: ParallelJob): ExploreResult {
-  if (!workers || workers <= 1 || opts.canonicalize || opts.edges || opts.continueOnError || opts.resume || opts.memoryBudget !== undefined || !provider) return explore(inst, opts)
+  // Edges are recorded in parallel for real states only, and only when the job says so.
+  const edgesOk = !opts.edges || (job.edges === true && !opts.edges.reduced && opts.edges.markedEdge !== undefined)
+  if (!workers || workers <= 1 || opts.canonicalize || !edgesOk || opts.continueOnError || opts.resume || opts.memoryBudget !== undefined || !provider) return explore(inst, opts)
   const pool = provider(workers)
   if (!pool) return explore(inst, opts)
   return exploreParallel(inst, opts, job, pool)
@@ -266,7 +281,7 @@ class ParallelSearch {
     this.ctrl = new Int32Array(this.buf.ctrl)
     this.err = new Uint8Array(this.buf.err)
     this.lastReport = t0
-    this.localJob = { inst, invariant: opts.invariant }
+    this.localJob = { inst, invariant: opts.invariant, marks: opts.edges && job.edges ? fairMarks(inst) : undefined }
     this.localState = new LevelState(this.W)
   }
 
@@ -279,6 +294,8 @@ class ParallelSearch {
     if (!this.setTable(tableFor(this.size * 4), this.size * 4 * W, this.size * 4 * W)) return explore(this.inst, this.opts)
 
     let ratio = 4
+    // Edges per source expected (recorded searches): from the last level, grown on overflow.
+    let edgeRatio = parallelTuning.edgesPerSource
     while (this.a < this.size) {
       const a = this.a
       const b = this.size
@@ -298,13 +315,22 @@ class ParallelSearch {
           if (!this.grow('stage', pend * W * 4) || !this.grow('minSrc', pend * 4) || !this.grow('slotOf', pend * 4)) return this.handover()
         }
         if (!this.grow('blocks', (Math.ceil(frontier / BLOCK) + 1) * 4)) return this.handover()
+        if (this.localJob.marks && !this.sizeEdges(frontier, edgeRatio)) return this.handover()
         // Room in the arena for every state this level may add, as far as the buffer allows.
         this.grow('arena', Math.min(pool.caps.arena, (size + pend) * W * 4))
         ctrl[C.ARENACAP] = Math.floor(buf.arena.byteLength / 4 / W)
         ctrl[C.A] = a; ctrl[C.B] = b; ctrl[C.SIZE] = size; ctrl[C.MAXPEND] = pend; ctrl[C.ROOM] = this.room(); ctrl[C.BLOCK] = BLOCK
-        ctrl[C.HALT] = 0; ctrl[C.OVERFLOW] = 0; ctrl[C.RESERVE] = 0; ctrl[C.SKIP] = 0; ctrl[C.BAR] = 0
+        ctrl[C.HALT] = 0; ctrl[C.OVERFLOW] = 0; ctrl[C.RESERVE] = 0; ctrl[C.SKIP] = 0; ctrl[C.BAR] = 0; ctrl[C.EDGEOVER] = 0
         this.phase(PHASE.LEVEL)
         if (this.stopped) { this.discard(); return this.finish(false) }
+        if (ctrl[C.EDGEOVER] !== 0 && ctrl[C.OVERFLOW] === 0) {
+          // A worker's edge region was too small for this level: twice the room, and again.
+          this.discard()
+          parallelCounters.edgeRedos++
+          edgeRatio *= 2
+          redo = true
+          continue
+        }
         if (ctrl[C.OVERFLOW] !== 0) {
           const reserved = Atomics.load(ctrl, C.RESERVE)
           this.discard()
@@ -324,6 +350,7 @@ class ParallelSearch {
       Atomics.store(ctrl, C.RESERVE, 0)
       this.transitions += levelTransitions
       ratio = Math.max(0.25, fresh / frontier)
+      if (this.localJob.marks) edgeRatio = Math.max(parallelTuning.edgesPerSource, feedEdges(this.localViews(), this.opts.edges!, this.W, this.P) / frontier)
       this.a = b
       this.size = b + fresh
       if (fresh > 0) this.levelStart.push(b)
@@ -332,8 +359,21 @@ class ParallelSearch {
     return this.finish(true)
   }
 
+  /** Edge regions for `frontier` sources at `ratio` edges each, split among the workers; false past the cap. */
+  private sizeEdges(frontier: number, ratio: number): boolean {
+    const { ctrl, pool } = this
+    const perWorker = Math.ceil((frontier * ratio * 1.25) / this.P) + 4096
+    const cap = Math.min(perWorker, Math.floor(pool.caps.stage / 8 / this.P))
+    if (cap < perWorker && ratio > 64) return false
+    if (!this.grow('edges', cap * 8 * this.P)) return false
+    if (!this.grow('rows', (frontier + 2 * (Math.ceil(frontier / BLOCK) + 1)) * 4)) return false
+    ctrl[C.EDGECAP] = cap
+    return true
+  }
+
   private capOf(name: BufferName): number {
-    return name === 'minSrc' || name === 'slotOf' || name === 'blocks' ? this.pool.caps.perState : this.pool.caps[name]
+    if (name === 'edges') return this.pool.caps.stage
+    return name === 'minSrc' || name === 'slotOf' || name === 'blocks' || name === 'rows' ? this.pool.caps.perState : this.pool.caps[name]
   }
 
   /** Grows a buffer to at least `bytes`: in place, or by a new buffer the workers are given. */
@@ -395,7 +435,7 @@ class ParallelSearch {
   /** This thread's own views of the buffers. */
   private localViews(): WorkerViews {
     const { ctrl, err, buf } = this
-    return { ctrl, err, job: buf.job, table: buf.table, arena: buf.arena, stage: buf.stage, minSrc: buf.minSrc, slotOf: buf.slotOf, blocks: buf.blocks }
+    return { ctrl, err, job: buf.job, table: buf.table, arena: buf.arena, stage: buf.stage, minSrc: buf.minSrc, slotOf: buf.slotOf, blocks: buf.blocks, edges: buf.edges, rows: buf.rows }
   }
 
   private runLocal(kind: number): void {
@@ -501,6 +541,8 @@ interface WorkerViews {
   minSrc: SharedArrayBuffer
   slotOf: SharedArrayBuffer
   blocks: SharedArrayBuffer
+  edges: SharedArrayBuffer
+  rows: SharedArrayBuffer
 }
 
 // Views of the growable buffers are made at their current length for each phase: a
@@ -524,7 +566,9 @@ export function reportFault(buffers: SharedBuffers, index: number, e: unknown): 
 export interface CompiledJob {
   inst: Instance
   invariant: ((w: Uint32Array, off: number) => boolean) | undefined
-  fault?: { worker: number; after: number }
+  /** The fairness marks, when the search records edges. */
+  marks?: FairMarks
+  fault?: { worker: number; after: number; exit?: boolean }
 }
 
 /**
@@ -535,7 +579,7 @@ export function serveExploration(buffers: SharedBuffers, index: number, compile:
   let v: WorkerViews = {
     ctrl: new Int32Array(buffers.ctrl), err: new Uint8Array(buffers.err), job: buffers.job, table: buffers.table,
     arena: buffers.arena, stage: buffers.stage, minSrc: buffers.minSrc, slotOf: buffers.slotOf,
-    blocks: buffers.blocks,
+    blocks: buffers.blocks, edges: buffers.edges, rows: buffers.rows,
   }
   const ctrl = v.ctrl
   // A pool's workers start before its first phase: generation 0.
@@ -550,7 +594,7 @@ export function serveExploration(buffers: SharedBuffers, index: number, compile:
     if (refresh) {
       // Buffers replaced since the last phase (pools with `replace`).
       refresh()
-      v = { ...v, job: buffers.job, table: buffers.table, arena: buffers.arena, stage: buffers.stage, minSrc: buffers.minSrc, slotOf: buffers.slotOf, blocks: buffers.blocks }
+      v = { ...v, job: buffers.job, table: buffers.table, arena: buffers.arena, stage: buffers.stage, minSrc: buffers.minSrc, slotOf: buffers.slotOf, blocks: buffers.blocks, edges: buffers.edges, rows: buffers.rows }
     }
     try {
       switch (kind) {
@@ -764,7 +808,18 @@ function expandPhase(v: WorkerViews, index: number, job: CompiledJob, st: LevelS
   let stop = false
   let expanded = 0
   const fault = job.fault && job.fault.worker === index ? job.fault.after : -1
-  const emit = (succ: Uint32Array): boolean => {
+  // Recorded searches: this worker's region of `edges`, (id, marks) pairs, and per source its count.
+  const fm = job.marks
+  const edgeCap = ctrl[C.EDGECAP]
+  const edges = fm ? i32(v.edges) : null
+  const rows = fm ? i32(v.rows) : null
+  const edgeBase = index * edgeCap * 2
+  const frontier = b - a
+  const row = new RowSet()
+  let nEdges = 0
+  let rowStart = 0
+  let rowBase = 0
+  const emit = (succ: Uint32Array, stepped: number, receivedFrom: number): boolean => {
     let slot = hashWords(succ, 0, W) & mask
     let id: number
     let fresh = false
@@ -828,6 +883,15 @@ function expandPhase(v: WorkerViews, index: number, job: CompiledJob, st: LevelS
       transitions++
       if (id < 0) st.pushEmit(-id - 1)
     }
+    if (fm) {
+      const m = fm.edgeMarks(rowBase, succ, 0, stepped, receivedFrom)
+      if (row.add(id, m)) {
+        if (nEdges === edgeCap) { Atomics.store(ctrl, C.EDGEOVER, 1); Atomics.store(ctrl, C.HALT, 2); stop = true; return true }
+        edges![edgeBase + 2 * nEdges] = id
+        edges![edgeBase + 2 * nEdges + 1] = m
+        nEdges++
+      }
+    }
     return false
   }
   const bound: ExpansionBound = {
@@ -842,16 +906,19 @@ function expandPhase(v: WorkerViews, index: number, job: CompiledJob, st: LevelS
     if (s0 >= b) break
     const s1 = Math.min(b, s0 + B)
     st.blockIds.push(blk)
+    if (rows) { rows[frontier + 2 * blk] = index; rows[frontier + 2 * blk + 1] = nEdges }
     for (s = s0; s < s1; s++) {
       const off = s * W
       for (let k = 0; k < W; k++) src[k] = arena[off + k]
       seen.reset()
+      if (fm) { row.reset(); rowStart = nEdges; rowBase = fm.sourceMarks(src, 0) }
       if (expanded++ === fault) {
         // The thread ends at once, as a killed worker's would (Node's worker_threads; elsewhere it throws).
         if (job.fault!.exit) (globalThis as { process?: { exit(code: number): void } }).process?.exit(70)
         throw new Error('test fault: this worker was told to fail')
       }
       const err = inst.successors(src, 0, emit, bound)
+      if (rows) rows[s - a] = nEdges - rowStart
       st.pushSeg()
       if (err || bound.interrupted) { Atomics.store(ctrl, C.HALT, 1); stop = true }
       if (stop) break
@@ -902,4 +969,37 @@ function assignPhase(v: WorkerViews, st: LevelState): void {
     for (let k = 0; k < W; k++) arena[to + k] = stage[from + k]
     Atomics.store(table, slotOf[p], next)
   })
+}
+
+/**
+ * After a level stands (its pending states numbered): hands every source's recorded edges to the
+ * search's recorder, sources in index order and each row in the order its worker found it, with
+ * pending ids resolved to their indices, exactly as the sequential search records them. Returns
+ * the level's edge count.
+ */
+function feedEdges(v: WorkerViews, rec: EdgeRecorder, W: number, P: number): number {
+  const ctrl = v.ctrl
+  const a = ctrl[C.A], b = ctrl[C.B], B = ctrl[C.BLOCK], cap = ctrl[C.EDGECAP]
+  const frontier = b - a
+  const rows = i32(v.rows), edges = i32(v.edges), table = i32(v.table), slotOf = i32(v.slotOf), arena = u32(v.arena)
+  const src = new Uint32Array(W)
+  let k = 0
+  let total = 0
+  for (let s = a; s < b; s++) {
+    const blk = ((s - a) / B) | 0
+    if ((s - a) % B === 0) {
+      const w = rows[frontier + 2 * blk]
+      if (w < 0 || w >= P) throw new Error(`internal error: block ${blk} of the level has no worker`)
+      k = (w * cap + rows[frontier + 2 * blk + 1]) * 2
+    }
+    for (let j = 0; j < W; j++) src[j] = arena[s * W + j]
+    rec.beginSource(s, src)
+    const n = rows[s - a]
+    total += n
+    for (let e = 0; e < n; e++, k += 2) {
+      const id = edges[k]
+      rec.markedEdge!(id >= 0 ? id : table[slotOf[-id - 1]] - 1, edges[k + 1])
+    }
+  }
+  return total
 }

@@ -36,6 +36,8 @@ export interface EdgeRecorder {
   beginSource(index: number, src: Uint32Array): void
   /** One successor of the current source: its store index and what `successors` reported. */
   edge(target: number, dst: Uint32Array, stepped: number, receivedFrom: number, perm: number): void
+  /** Where offered: an edge whose fairness marks were computed by the caller (parallel search). */
+  markedEdge?(target: number, marks: number): void
 }
 
 export interface ExploreOptions {

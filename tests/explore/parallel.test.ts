@@ -4,9 +4,11 @@
 // outcome, model error and shortest trace; through the runner, the same rows (verdicts, counts,
 // counterexamples). A worker that throws makes the row `error`, never a partial verdict.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { parallelTuning, exploreParallel, setPoolProvider, type ParallelJob } from '../../kernels/explore/parallel'
+import { parallelCounters, parallelTuning, exploreParallel, setPoolProvider, type ParallelJob } from '../../kernels/explore/parallel'
 import { closeNodePools, nodePool, useNodePools } from '../../kernels/explore/pool-node'
 import { explore, type ExploreResult } from '../../kernels/explore/reach'
+import { FairGraphRecorder } from '../../kernels/explore/fairgraph'
+import type { ChunkedInt32 } from '../../kernels/base/chunked'
 import { analyzeNotebook } from '../../kernels/language/analyze'
 import type { ProtocolModel } from '../../kernels/language/model'
 import { compileInstance } from '../../kernels/model/instance'
@@ -24,6 +26,7 @@ beforeAll(() => {
 })
 afterAll(async () => {
   parallelTuning.minFrontier = 2048
+  parallelTuning.edgesPerSource = 16
   setPoolProvider(null)
   await closeNodePools()
 })
@@ -92,6 +95,84 @@ describe('parallel exploration equals sequential exploration', () => {
     expect(invariantRows).toBeGreaterThan(25)
     expect(violated).toBeGreaterThan(0)
     expect(violated).toBeLessThan(invariantRows)
+  })
+})
+
+/** What a recorder holds so far (rows, targets, marks), whether or not the search completed. */
+function recorded(rec: FairGraphRecorder) {
+  const { start, target, marks } = rec as unknown as { start: ChunkedInt32 | null; target: ChunkedInt32; marks: ChunkedInt32 }
+  const all = (c: ChunkedInt32) => Array.from({ length: c.length }, (_, k) => c.get(k))
+  return { start: start ? all(start) : null, target: all(target), marks: all(marks) }
+}
+
+describe('a temporal row\'s fair graph recorded by the parallel search', () => {
+  it('equals the sequential recording on generated protocols at N = 1, 2, 3 under a limit, for 1, 2 and 3 workers', () => {
+    parallelTuning.minFrontier = 0
+    let compared = 0
+    let edges = 0
+    for (let seed = 1; seed <= SEEDS; seed++) {
+      const p = protocolOf(generateNotebook(seed))
+      const constants = p.consts.map((c) => c.value)
+      for (const n of [1, 2, 3]) {
+        let inst
+        try { inst = compileInstance(p, n, constants) } catch { continue }
+        const limit = 1500
+        const rec = new FairGraphRecorder(inst)
+        const want = { ...summary(explore(inst, { limit, edges: rec }), inst.words), graph: recorded(rec) }
+        edges += want.graph.target.length
+        const job: ParallelJob = { protocol: p, n, constants, invariant: null, edges: true }
+        for (const w of WORKERS) {
+          const prec = new FairGraphRecorder(inst)
+          const got = { ...summary(exploreParallel(inst, { limit, edges: prec }, job, nodePool(w)), inst.words), graph: recorded(prec) }
+          expect(got, `seed ${seed} N=${n} workers ${w}`).toEqual(want)
+        }
+        compared++
+      }
+    }
+    expect(compared).toBeGreaterThan(60)
+    expect(edges).toBeGreaterThan(10_000)
+  })
+
+  for (const timing of ['synchronous(delay: delay, idle: 1)', 'eventually synchronous(delay: delay, idle: 1)', 'asynchronous']) {
+    it(`equals the sequential recording on the pumps at N = 3 under ${timing.split('(')[0]} (wide levels, edge regions that grow)`, () => {
+      parallelTuning.minFrontier = 2048
+      // Room for one edge per source at first: the regions must grow, and levels be expanded again.
+      parallelTuning.edgesPerSource = 1
+      parallelCounters.edgeRedos = 0
+      const p = protocolOf(`# Orchard pumps\n\n\`\`\`protocol\n${PUMPS.replace(/timing [^\n]*/, `timing ${timing}`)}\n\`\`\`\n`)
+      const constants = p.consts.map((c) => c.value)
+      const inst = compileInstance(p, 3, constants)
+      const limit = 60_000
+      const rec = new FairGraphRecorder(inst)
+      const want = { ...summary(explore(inst, { limit, edges: rec }), inst.words), graph: recorded(rec) }
+      for (const w of [2]) {
+        const prec = new FairGraphRecorder(inst)
+        const got = { ...summary(exploreParallel(inst, { limit, edges: prec }, { protocol: p, n: 3, constants, invariant: null, edges: true }, nodePool(w)), inst.words), graph: recorded(prec) }
+        expect(got, `workers ${w}`).toEqual(want)
+      }
+      parallelTuning.edgesPerSource = 16
+      expect(parallelCounters.edgeRedos).toBeGreaterThan(0)
+    })
+  }
+
+  it('gives temporal rows the same verdicts, counts and lassos for 1, 2 and 3 workers', () => {
+    parallelTuning.minFrontier = 0
+    const strip = (r: CheckRow) => ({ ...r, seconds: 0 })
+    let temporalRows = 0
+    let violated = 0
+    for (let seed = 1; seed <= SEEDS; seed++) {
+      const text = generateNotebook(seed)
+      const nb = analyzeNotebook(text + '\n' + generateProperties(protocolOf(text), seed))
+      for (const plan of planRows(nb)) {
+        const one = runRow(nb, plan)
+        if (one.search !== 'ltl' || one.reducedStates !== undefined) continue
+        temporalRows++
+        if (one.verdict === 'violated') violated++
+        for (const w of [2, 3]) expect(strip(runRow(nb, plan, { workers: w })), `seed ${seed} row ${plan.row} workers ${w}`).toEqual(strip(one))
+      }
+    }
+    expect(temporalRows).toBeGreaterThan(15)
+    expect(violated).toBeGreaterThan(0)
   })
 })
 

@@ -14,6 +14,8 @@ import { pumps } from './explore'
 import { compileInstance } from '../kernels/model/instance'
 import { rowInvariant } from '../kernels/explore/invariant'
 import { atomsOf } from '../kernels/language/formula'
+import { FairGraphRecorder } from '../kernels/explore/fairgraph'
+import type { ExploreOptions } from '../kernels/explore/reach'
 
 /** One worker count. */
 export interface ParallelRun {
@@ -53,7 +55,11 @@ check pumps: bounded at N = 3
 \`\`\`
 `
 
-function measure(name: string, timing: string, n: number, maxWorkers: number): ParallelCase {
+/**
+ * `edges`: the search of a temporal row, recording the fair graph (a fresh recorder per run), not
+ * the invariant row's.
+ */
+function measure(name: string, timing: string, n: number, maxWorkers: number, edges = false): ParallelCase {
   const nb = analyzeNotebook(pumpsRow(timing))
   const errors = nb.diagnostics.filter((d) => d.severity === 'error')
   if (errors.length > 0) throw new Error(`${errors[0].line}:${errors[0].column} ${errors[0].message}`)
@@ -65,25 +71,26 @@ function measure(name: string, timing: string, n: number, maxWorkers: number): P
   const formula = prop.formula.arg
   const terms = atomsOf(prop.formula)
   const chosen = [[0, 1]]
-  const job: ParallelJob = { protocol, n, constants, invariant: { formula, terms, chosen } }
+  const job: ParallelJob = edges ? { protocol, n, constants, invariant: null, edges: true } : { protocol, n, constants, invariant: { formula, terms, chosen } }
   const invariant = rowInvariant(inst, formula, terms, chosen).invariant
-  explore(inst, { invariant }) // warm-up: compiles the hot loops once
-  let seq = explore(inst, { invariant })
-  const again = explore(inst, { invariant })
+  const options = (): ExploreOptions => (edges ? { edges: new FairGraphRecorder(inst) } : { invariant })
+  explore(inst, options()) // warm-up: compiles the hot loops once
+  let seq = explore(inst, options())
+  const again = explore(inst, options())
   if (again.seconds < seq.seconds) seq = again
   if (!seq.complete) throw new Error(`${name}: the invariant did not hold`)
   const settings = Array.from({ length: maxWorkers }, (_, i) => i + 1)
   const pools = settings.map((w) => {
     const pool = nodePool(w)
     pool.start()
-    exploreParallel(inst, { invariant }, job, pool) // warm-up: each worker compiles its hot loops once
+    exploreParallel(inst, options(), job, pool) // warm-up: each worker compiles its hot loops once
     return pool
   })
   // times[round][setting]
   const times: number[][] = []
   for (let k = 0; k < ROUNDS; k++) {
     times.push(settings.map((w, i) => {
-      const r = exploreParallel(inst, { invariant }, job, pools[i])
+      const r = exploreParallel(inst, options(), job, pools[i])
       if (r.states !== seq.states || r.transitions !== seq.transitions || !r.complete) {
         throw new Error(`${name}: ${w} workers found ${r.states} states and ${r.transitions} transitions, not ${seq.states} and ${seq.transitions}`)
       }
@@ -116,7 +123,11 @@ function median(xs: number[]): number {
 export async function parallelCases(): Promise<ParallelCase[]> {
   const max = Math.max(2, cores())
   try {
-    return [measure('pumps heartbeat, synchronous, crash: bounded (invariant)', 'synchronous(delay: delay, idle: 1)', 3, max)]
+    const timing = 'synchronous(delay: delay, idle: 1)'
+    return [
+      measure('pumps heartbeat, synchronous, crash: bounded (invariant)', timing, 3, max),
+      measure('pumps heartbeat, synchronous, crash: recording the fair graph (temporal rows)', timing, 3, max, true),
+    ]
   } finally {
     await closeNodePools()
   }

@@ -56,13 +56,14 @@ export interface RunOptions {
    */
   memoryBudget?: number
   /**
-   * Workers for the invariant route's exploration (explore/parallel.ts); 1 or absent: this thread
-   * only. Results are the same for any number. Used where a pool provider is registered.
+   * Workers for the exploration of invariant and temporal rows (explore/parallel.ts; temporal rows
+   * record their fair graph there too); 1 or absent: this thread only. Results are the same for any number. Used where a pool provider is registered.
    */
   workers?: number
   /**
    * Told, for each row that explored, how many threads took part in its exploration: 1 for the
-   * routes the parallel explorer does not take (temporal and symmetry-reduced rows) and for
+   * routes the parallel explorer does not take (symmetry-reduced rows, temporal rows that
+   * recompute their edges) and for
    * searches whose levels never grew wide enough to share, else the pool's size.
    */
   onExplored?: (row: number, workers: number) => void

@@ -808,17 +808,7 @@ function expandPhase(v: WorkerViews, index: number, job: CompiledJob, st: LevelS
   let stop = false
   let expanded = 0
   const fault = job.fault && job.fault.worker === index ? job.fault.after : -1
-  // Recorded searches: this worker's region of `edges`, (id, marks) pairs, and per source its count.
-  const fm = job.marks
-  const edgeCap = ctrl[C.EDGECAP]
-  const edges = fm ? i32(v.edges) : null
-  const rows = fm ? i32(v.rows) : null
-  const edgeBase = index * edgeCap * 2
-  const frontier = b - a
-  const row = new RowSet()
-  let nEdges = 0
-  let rowStart = 0
-  let rowBase = 0
+  const notes = job.marks ? new EdgeNotes(v, index, job.marks) : null
   const emit = (succ: Uint32Array, stepped: number, receivedFrom: number): boolean => {
     let slot = hashWords(succ, 0, W) & mask
     let id: number
@@ -883,15 +873,7 @@ function expandPhase(v: WorkerViews, index: number, job: CompiledJob, st: LevelS
       transitions++
       if (id < 0) st.pushEmit(-id - 1)
     }
-    if (fm) {
-      const m = fm.edgeMarks(rowBase, succ, 0, stepped, receivedFrom)
-      if (row.add(id, m)) {
-        if (nEdges === edgeCap) { Atomics.store(ctrl, C.EDGEOVER, 1); Atomics.store(ctrl, C.HALT, 2); stop = true; return true }
-        edges![edgeBase + 2 * nEdges] = id
-        edges![edgeBase + 2 * nEdges + 1] = m
-        nEdges++
-      }
-    }
+    if (notes && !notes.edge(id, succ, stepped, receivedFrom)) { stop = true; return true }
     return false
   }
   const bound: ExpansionBound = {
@@ -906,19 +888,15 @@ function expandPhase(v: WorkerViews, index: number, job: CompiledJob, st: LevelS
     if (s0 >= b) break
     const s1 = Math.min(b, s0 + B)
     st.blockIds.push(blk)
-    if (rows) { rows[frontier + 2 * blk] = index; rows[frontier + 2 * blk + 1] = nEdges }
+    if (notes) notes.block(blk)
     for (s = s0; s < s1; s++) {
       const off = s * W
       for (let k = 0; k < W; k++) src[k] = arena[off + k]
       seen.reset()
-      if (fm) { row.reset(); rowStart = nEdges; rowBase = fm.sourceMarks(src, 0) }
-      if (expanded++ === fault) {
-        // The thread ends at once, as a killed worker's would (Node's worker_threads; elsewhere it throws).
-        if (job.fault!.exit) (globalThis as { process?: { exit(code: number): void } }).process?.exit(70)
-        throw new Error('test fault: this worker was told to fail')
-      }
+      if (notes) notes.source(src)
+      if (expanded++ === fault) testFault(job)
       const err = inst.successors(src, 0, emit, bound)
-      if (rows) rows[s - a] = nEdges - rowStart
+      if (notes) notes.endSource(s)
       st.pushSeg()
       if (err || bound.interrupted) { Atomics.store(ctrl, C.HALT, 1); stop = true }
       if (stop) break
@@ -927,6 +905,12 @@ function expandPhase(v: WorkerViews, index: number, job: CompiledJob, st: LevelS
   ctrl[C.TRANS + index] = transitions
   ctrl[C.PUB + index] = published
   ctrl[C.WIDEST + index] = bound.widest ?? 0
+}
+
+/** The test hook's failure: the thread ends at once, as a killed worker's would (Node's worker_threads; elsewhere it throws). */
+function testFault(job: CompiledJob): never {
+  if (job.fault!.exit) (globalThis as { process?: { exit(code: number): void } }).process?.exit(70)
+  throw new Error('test fault: this worker was told to fail')
 }
 
 /** Walks a worker's blocks, calling `owned(p, blk)` for each pending state first reached in that block, in order. */
@@ -969,6 +953,59 @@ function assignPhase(v: WorkerViews, st: LevelState): void {
     for (let k = 0; k < W; k++) arena[to + k] = stage[from + k]
     Atomics.store(table, slotOf[p], next)
   })
+}
+
+/**
+ * A worker's recorded edges of one level: (id, marks) pairs in its region of `edges` (ids as the
+ * level's search knows them: an index, or -(p + 1) for pending state p), distinct per row as the
+ * sequential recorder keeps them; per source its count, per block its worker and first edge.
+ */
+class EdgeNotes {
+  private readonly edges: Int32Array
+  private readonly rows: Int32Array
+  private readonly cap: number
+  private readonly base: number
+  private readonly a: number
+  private readonly frontier: number
+  private readonly row = new RowSet()
+  private n = 0
+  private rowStart = 0
+  private marks = 0
+  constructor(private readonly v: WorkerViews, private readonly index: number, private readonly fm: FairMarks) {
+    const ctrl = v.ctrl
+    this.edges = i32(v.edges)
+    this.rows = i32(v.rows)
+    this.cap = ctrl[C.EDGECAP]
+    this.base = index * this.cap * 2
+    this.a = ctrl[C.A]
+    this.frontier = ctrl[C.B] - this.a
+  }
+  block(blk: number): void {
+    this.rows[this.frontier + 2 * blk] = this.index
+    this.rows[this.frontier + 2 * blk + 1] = this.n
+  }
+  source(src: Uint32Array): void {
+    this.row.reset()
+    this.rowStart = this.n
+    this.marks = this.fm.sourceMarks(src, 0)
+  }
+  /** False when the region is full (the level is expanded again with more room). */
+  edge(id: number, succ: Uint32Array, stepped: number, receivedFrom: number): boolean {
+    const m = this.fm.edgeMarks(this.marks, succ, 0, stepped, receivedFrom)
+    if (!this.row.add(id, m)) return true
+    if (this.n === this.cap) {
+      Atomics.store(this.v.ctrl, C.EDGEOVER, 1)
+      Atomics.store(this.v.ctrl, C.HALT, 2)
+      return false
+    }
+    this.edges[this.base + 2 * this.n] = id
+    this.edges[this.base + 2 * this.n + 1] = m
+    this.n++
+    return true
+  }
+  endSource(s: number): void {
+    this.rows[s - this.a] = this.n - this.rowStart
+  }
 }
 
 /**

@@ -51,7 +51,7 @@ export async function runCheck(io: CliIo, loadKernel: () => Promise<RecordKernel
   }
 
   const progress = progressLine(options.quiet ? { ...io, stderrIsTTY: false } : io)
-  // Invariant rows explore on `--workers` worker threads (default: every core), the same results
+  // Invariant and temporal rows explore on `--workers` worker threads (default: every core), the same results
   // as one; the pool starts only when a search has a level wide enough to share.
   useNodePools()
   const ctrlC = interruptOnCtrlC(io)

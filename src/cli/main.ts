@@ -41,7 +41,7 @@ export async function main(argv: string[], io: CliIo): Promise<number> {
     .option('--only <name>', 'run only the checks that name this property or protocol')
     .option('--shard <I/N|auto>', 'run only rows whose plan index is I-1 modulo N (join with merge); auto reads I/N from a Kubernetes Indexed Job, a Slurm job array or CI_NODE_INDEX/CI_NODE_TOTAL')
     .option('--shards <N>', 'with --shard auto: the shard count (required on Kubernetes, else checked against the environment)')
-    .option('--workers <N>', 'parallel workers for exploration, 1 to 256 (default: the number of cores; temporal rows use one)')
+    .option('--workers <N>', 'parallel workers for exploration, 1 to 256 (default: the number of cores; symmetry-reduced rows use one)')
     .option('--recompute-edges', 'temporal rows: store no edge graph and recompute edges when the search needs them (less memory, slower; same results)')
     .option('--color [when]', 'colour the table: always (the default for a bare --color), never or auto (a terminal and NO_COLOR unset)')
     .option('--no-color', 'never colour the table')

@@ -42,7 +42,7 @@ export function threadLine(t: ThreadUse): string | null {
   const alone = t.rows.size - shared
   const rows = (k: number) => `${k} row${k === 1 ? '' : 's'}`
   if (alone === 0) return `explored on ${t.workers} workers: ${rows(shared)}`
-  return `explored on ${t.workers} workers: ${rows(shared)}; on one: ${rows(alone)} (temporal and symmetry-reduced rows, and searches too small to share, explore on one)`
+  return `explored on ${t.workers} workers: ${rows(shared)}; on one: ${rows(alone)} (symmetry-reduced rows, temporal rows under --recompute-edges, and searches too small to share, explore on one)`
 }
 
 /** Prints or writes the report of a finished `twofold check` as `options` say. */

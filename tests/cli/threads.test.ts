@@ -1,6 +1,6 @@
 // `twofold check --workers N` says under the table how many rows explored on N workers and how
-// many on one, with the real kernel: an invariant row wide enough to share takes the pool, a
-// temporal row and a small search do not. The counts are the kernel's (RunOptions.onExplored).
+// many on one, with the real kernel: an invariant row wide enough to share takes the pool, small
+// searches (an invariant and a temporal row at N = 2) do not. The counts are the kernel's (RunOptions.onExplored).
 // And `--recompute-edges` (no stored edge graph for temporal rows) gives the same rows.
 import { afterAll, describe, expect, it } from 'vitest'
 import { closeNodePools } from '../../kernels/explore/pool-node'
@@ -38,7 +38,7 @@ describe('the line on workers', () => {
     const ran = await twofold(['check', 'pumps.md', '--workers', '2'], ws.dir)
     expect(ran.stderr).toBe('')
     expect(ran.code).toBe(0)
-    expect(ran.stdout).toContain('explored on 2 workers: 1 row; on one: 2 rows (temporal and symmetry-reduced rows, and searches too small to share, explore on one)\n')
+    expect(ran.stdout).toContain('explored on 2 workers: 1 row; on one: 2 rows (symmetry-reduced rows, temporal rows under --recompute-edges, and searches too small to share, explore on one)\n')
   })
 
   it('is not printed for one worker', async () => {

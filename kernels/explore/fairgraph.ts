@@ -151,6 +151,8 @@ export class FairGraphRecorder implements EdgeRecorder {
   private marks = new ChunkedInt32()
   private readonly row = new RowSet()
   private base = 0
+  private baseKnown = false
+  private src = new Uint32Array(0)
 
   /** `budget`: edges kept at most; 0 records nothing (rows are then recomputed on demand). */
   constructor(inst: Instance, private readonly budget = RECORD_EDGE_BUDGET) {
@@ -174,7 +176,10 @@ export class FairGraphRecorder implements EdgeRecorder {
     if (index !== this.start.length) throw new Error(`internal error: fair graph row ${index} out of order`)
     if (this.target.length > this.budget) { this.abandon(); return }
     this.start.push(this.target.length)
-    this.base = this.fm.sourceMarks(src, 0)
+    // The source's marks are computed at its first `edge` (rows fed by `markedEdge` need none);
+    // the caller keeps `src` unchanged while the row lasts.
+    this.src = src
+    this.baseKnown = false
     this.row.reset()
   }
 
@@ -190,6 +195,7 @@ export class FairGraphRecorder implements EdgeRecorder {
 
   edge(target: number, dst: Uint32Array, stepped: number, receivedFrom: number): void {
     if (!this.start) return
+    if (!this.baseKnown) { this.base = this.fm.sourceMarks(this.src, 0); this.baseKnown = true }
     const m = this.fm.edgeMarks(this.base, dst, 0, stepped, receivedFrom)
     if (!this.row.add(target, m)) return
     this.target.push(target)

@@ -239,6 +239,7 @@ export function systemOf(inst: Instance, r: ExploreResult, g: FairGraph | null, 
     const { start, target, marks } = g
     return {
       ...base,
+      rows: g,
       successors(s, to, fair) {
         for (let k = start.get(s), e = start.get(s + 1); k < e; k++) {
           to.push(target.get(k))

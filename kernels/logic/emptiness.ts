@@ -4,8 +4,9 @@
 // strongly connected components, each with the union of the marks seen inside it; when a back
 // edge merges components and the union covers every mark, the graph has an accepting run.
 //
-// Everything is packed: per-node tables, the DFS stack and the pending edges are Int32 buffers
-// indexed by the node ids the graph assigns. Nothing recurses.
+// Everything is packed: per-node tables and the DFS stack are Int32 buffers indexed by the node
+// ids the graph assigns, and each open node's edges are read one at a time through a cursor
+// (`EdgeCursor`) whose state is a few integers in its frame. Nothing recurses.
 //
 // A found component is turned into a short lasso afterwards: a breadth-first search from the
 // initial nodes to the nearest node of the component, then, inside the component, repeated
@@ -26,11 +27,75 @@ export interface MarkedGraph {
    * The search hands its own packed buffers, so nothing is copied from a JavaScript array.
    */
   successors(node: number, to: EdgeSink, marks: EdgeSink): void
+  /**
+   * The same edges, in the same order, read one at a time (the depth-first search uses it when
+   * present, the lasso's breadth-first searches use `successors`): a graph whose edges are
+   * already packed somewhere (a recorded fair graph) hands them out from there, and the search
+   * keeps no list of pending edges.
+   */
+  cursor?: EdgeCursor
+}
+
+/** Integers of cursor state the search keeps per open node for `EdgeCursor`. */
+export const CURSOR_WORDS = 4
+
+/**
+ * A lazy enumeration of every node's edges. The search keeps `CURSOR_WORDS` integers per open
+ * node, at `cur[at..]`, which only the cursor reads and writes; `open` and `close` come in
+ * stack order (a node opened after another is closed before it).
+ */
+export interface EdgeCursor {
+  /** Starts the edges of `node`, writing its cursor state at cur[at..]. */
+  open(node: number, cur: Int32Array, at: number): void
+  /** The next edge of `node`: its target (its marks are then in `mark`), or -1 when none is left. */
+  next(node: number, cur: Int32Array, at: number): number
+  /** The marks of the edge `next` returned last. */
+  mark: number
+  /** Ends `node`'s edges, once `next` has returned -1. */
+  close(node: number, cur: Int32Array, at: number): void
+  /** Bytes the cursor holds besides the search's tables. */
+  readonly bytes: number
+}
+
+/**
+ * The cursor of a graph that only has `successors`: each open node's edges are appended to one
+ * packed stack (cur[at] the next edge, cur[at + 1] the end, cur[at + 2] where they start) and cut
+ * off when it closes, so a parent never re-reads its descendants' edges.
+ */
+class StackedEdges implements EdgeCursor {
+  private readonly to = new Int32Buffer()
+  private readonly marks = new Int32Buffer()
+  mark = 0
+  constructor(private readonly g: MarkedGraph) {}
+
+  get bytes(): number {
+    return this.to.data.byteLength + this.marks.data.byteLength
+  }
+
+  open(node: number, cur: Int32Array, at: number): void {
+    const from = this.to.length
+    this.g.successors(node, this.to, this.marks)
+    cur[at] = from
+    cur[at + 1] = this.to.length
+    cur[at + 2] = from
+  }
+
+  next(_node: number, cur: Int32Array, at: number): number {
+    const p = cur[at]
+    if (p === cur[at + 1]) return -1
+    cur[at] = p + 1
+    this.mark = this.marks.data[p]
+    return this.to.data[p]
+  }
+
+  close(_node: number, cur: Int32Array, at: number): void {
+    this.to.length = this.marks.length = cur[at + 2]
+  }
 }
 
 /** Work counters of one search (filled in when passed as `EmptinessOptions.work`). */
 export interface EmptinessWork {
-  /** Iterations of the main loop: one per pending edge read plus one per frame popped. */
+  /** Iterations of the main loop: one per edge read plus one per frame popped. */
   iterations: number
   /** Bytes of the search's packed tables and stacks when it ended (their peak: they never shrink). */
   bytes?: number
@@ -62,7 +127,10 @@ export interface Lasso {
   edges: number
 }
 
-/** The result of `findAcceptingLasso`. `nodes` and `edges` count what the search explored. */
+/**
+ * The result of `findAcceptingLasso`. `nodes` and `edges` count what the search explored: the
+ * edges it read (every edge of every node reached, when the result is 'empty').
+ */
 export type EmptinessResult =
   | { kind: 'empty'; nodes: number; edges: number }
   | Lasso
@@ -82,11 +150,9 @@ export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: Empti
   const rootNum = new Int32Buffer() // the roots stack: DFS number of each partial component's root,
   const rootAcc = new Int32Buffer() // the marks seen inside it,
   const rootIn = new Int32Buffer() // and the marks of the tree edge that entered its root
-  const frameNode = new Int32Buffer() // the DFS stack: node, where its edges start, its next pending edge
-  const frameStart = new Int32Buffer()
-  const framePos = new Int32Buffer()
-  const edgeTo = new Int32Buffer() // pending edges of every frame, each frame's edges contiguous
-  const edgeMark = new Int32Buffer()
+  const frameNode = new Int32Buffer() // the DFS stack: each open node, with its edge cursor's state
+  const frameCur = new Int32Buffer(CURSOR_WORDS * 1024)
+  const cursor = g.cursor ?? new StackedEdges(g)
   let counter = 0, nodes = 0, edges = 0, maxId = -1, iterations = 0
   let lastReport = Date.now()
 
@@ -98,23 +164,16 @@ export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: Empti
     rootNum.push(counter)
     rootAcc.push(0)
     rootIn.push(inMark)
+    const at = CURSOR_WORDS * frameNode.length
     frameNode.push(v)
-    const from = edgeTo.length
-    frameStart.push(from)
-    framePos.push(from)
-    g.successors(v, edgeTo, edgeMark)
-    const end = edgeTo.length
-    edges += end - from
-    const td = edgeTo.data
-    let top = maxId
-    for (let i = from; i < end; i++) if (td[i] > top) top = td[i]
-    if (top > maxId) { maxId = top; num.ensure(top + 1) }
+    frameCur.ensure(at + CURSOR_WORDS)
+    cursor.open(v, frameCur.data, at)
   }
   const done = (r: EmptinessResult): EmptinessResult => {
     if (opts.work) {
       opts.work.iterations = iterations
-      opts.work.bytes = [num, active, rootNum, rootAcc, rootIn, frameNode, frameStart, framePos, edgeTo, edgeMark]
-        .reduce((b, x) => b + x.data.byteLength, 0)
+      opts.work.bytes = [num, active, rootNum, rootAcc, rootIn, frameNode, frameCur]
+        .reduce((b, x) => b + x.data.byteLength, cursor.bytes)
     }
     return r
   }
@@ -127,11 +186,12 @@ export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: Empti
       iterations++
       const f = frameNode.length - 1
       const v = frameNode.data[f]
-      // Only the top frame is ever worked on, so its pending edges run to the end of the buffer.
-      const p = framePos.data[f]
-      if (p < edgeTo.length) {
-        framePos.data[f] = p + 1
-        const w = edgeTo.data[p], m = edgeMark.data[p]
+      // Only the top frame is ever worked on: its cursor reads the next edge of v.
+      const w = cursor.next(v, frameCur.data, CURSOR_WORDS * f)
+      if (w >= 0) {
+        edges++
+        const m = cursor.mark
+        if (w > maxId) { maxId = w; num.ensure(w + 1) }
         const nw = num.data[w]
         if (nw === 0) {
           if ((nodes & 1023) === 0) {
@@ -158,12 +218,9 @@ export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: Empti
         }
         continue
       }
-      // v's edges are done: drop its frame and its edges (cut back to where they start, so the
-      // parent resumes at its own cursor and never re-reads its descendants' edges), and, when v
-      // is a root, close its component.
+      // v's edges are done: drop its frame, and, when v is a root, close its component.
+      cursor.close(v, frameCur.data, CURSOR_WORDS * f)
       frameNode.pop()
-      framePos.pop()
-      edgeTo.length = edgeMark.length = frameStart.pop()
       if (rootNum.top() === num.data[v]) {
         rootNum.pop(); rootAcc.pop(); rootIn.pop()
         let w: number

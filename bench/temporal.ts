@@ -11,7 +11,7 @@ import type { EmptinessWork } from '../kernels/logic/emptiness'
 import { fromModel } from '../kernels/logic/ltl'
 import { checkLtl } from '../kernels/logic/product'
 import { compileInstance } from '../kernels/model/instance'
-import { compileTerm } from '../kernels/model/observe'
+import { compileTerm, termMayFault } from '../kernels/model/observe'
 
 /** One temporal row measured beside the invariant row of the same instance. */
 export interface TemporalCase {
@@ -107,14 +107,15 @@ export function temporalCases(): TemporalCase[] {
     const t1 = performance.now()
     const terms: Term[] = []
     const ltl = fromModel(prop.formula, (t) => terms.push(t) - 1)
-    const sys = systemOf(inst, r, graph, terms.map((t) => compileTerm(inst, t, assignment)))
+    const sys = systemOf(inst, r, graph, terms.map((t) => compileTerm(inst, t, assignment)), terms.some((t) => termMayFault(inst, t)))
     const work: EmptinessWork = { iterations: 0 }
     const v = checkLtl(sys, ltl, { work })
     const t2 = performance.now()
     const exploreSeconds = (t1 - t0) / 1000, productSeconds = (t2 - t1) / 1000
     const temporalSeconds = exploreSeconds + productSeconds
-    // Per-state table of the product system: atom masks (4 bytes a state).
-    const systemBytes = 4 * r.states
+    // Per-state table of the product system: atom masks (fairgraph.ts atomTable: a byte a state
+    // for up to 7 atoms, else 4 bytes a state per 32 atoms).
+    const systemBytes = (terms.length <= 7 ? 1 : 4 * Math.ceil(terms.length / 32)) * r.states
     out.push({
       name: `pumps heartbeat, synchronous, crash: ${name}`,
       processes: n,

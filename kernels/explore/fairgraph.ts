@@ -215,26 +215,57 @@ function initialIds(inst: Instance, store: StateStore): number[] {
 }
 
 /**
- * The system the temporal product reads, for one assignment's compiled atoms: rows of the recorded
- * graph `g`, or, when `g` is null, rows recomputed on demand from the successor function (the same
- * edges in the same order).
+ * Each state's atoms, as `System.atoms` reads them. With at most 31 atoms a state's row is one
+ * entry of a small table (bytes for up to 7 atoms, so that the table of a few hundred thousand
+ * states stays in a core's cache while the product reads it at random) with a high "known" bit,
+ * filled in when first asked for; `eager` fills every row now instead. More atoms: rows of
+ * ceil(atoms / 32) words, always filled now.
  */
-export function systemOf(inst: Instance, r: ExploreResult, g: FairGraph | null, atoms: StateTerm[]): System {
-  const W = inst.words
-  const store = r.store
-  const data = store.data
-  const states = store.size
-  // Every reachable state's atoms, computed now: an atom that faults (a division by zero) on any
-  // reachable state throws here, before the search, as the runner expects.
+function atomTable(data: Uint32Array, W: number, states: number, atoms: StateTerm[], eager: boolean): Pick<System, 'atoms' | 'atomWords'> {
+  const K = atoms.length
+  const maskAt = (s: number): number => {
+    let m = 0
+    for (let k = 0; k < K; k++) if (atoms[k](data, s * W)) m |= 1 << k
+    return m
+  }
+  if (K <= 7) {
+    const tab = new Uint8Array(states)
+    if (eager) for (let s = 0; s < states; s++) tab[s] = maskAt(s) | 0x80
+    return { atomWords: 1, atoms: (s) => { let m = tab[s]; if (m === 0) m = tab[s] = maskAt(s) | 0x80; return m & 0x7f } }
+  }
+  if (K <= 31) {
+    const tab = new Int32Array(states)
+    if (eager) for (let s = 0; s < states; s++) tab[s] = maskAt(s) | 0x80000000
+    return { atomWords: 1, atoms: (s) => { let m = tab[s]; if (m === 0) m = tab[s] = maskAt(s) | 0x80000000; return m & 0x7fffffff } }
+  }
   // A row of AW words per state: atom k is bit k % 32 of word k / 32.
-  const AW = Math.max(1, Math.ceil(atoms.length / 32))
+  const AW = Math.ceil(K / 32)
   const masks = new Int32Array(states * AW)
   for (let s = 0; s < states; s++) {
-    for (let k = 0; k < atoms.length; k++) if (atoms[k](data, s * W)) masks[s * AW + (k >>> 5)] |= 1 << (k & 31)
+    for (let k = 0; k < K; k++) if (atoms[k](data, s * W)) masks[s * AW + (k >>> 5)] |= 1 << (k & 31)
   }
-  const atomsOf = AW === 1 ? (s: number): number => masks[s] : (s: number, w = 0): number => (w < AW ? masks[s * AW + w] : 0)
+  return { atomWords: AW, atoms: (s, w = 0) => (w < AW ? masks[s * AW + w] : 0) }
+}
+
+/**
+ * The system the temporal product reads, for one assignment's compiled atoms: rows of the recorded
+ * graph `g` (read in place, `System.rows`), or, when `g` is null, rows recomputed on demand from
+ * the successor function (the same edges in the same order).
+ *
+ * An atom that faults (a division by zero) on any reachable state throws here, before the search,
+ * as the runner expects, unless `mayFault` is false (see `termMayFault`): every state's atoms are
+ * then computed only when the product first reads them, so a product that meets a few states
+ * pays for those alone.
+ */
+export function systemOf(inst: Instance, r: ExploreResult, g: FairGraph | null, atoms: StateTerm[], mayFault = true): System {
+  const W = inst.words
+  const store = r.store
+  const states = store.size
   const initial = initialIds(inst, store)
-  const base: Omit<System, 'successors'> = { fairnessSets: g ? g.fairnessSets : fairMarks(inst).fairnessSets, initial: () => initial, atoms: atomsOf, atomWords: AW, states }
+  const base: Omit<System, 'successors'> = {
+    fairnessSets: g ? g.fairnessSets : fairMarks(inst).fairnessSets, initial: () => initial, states,
+    ...atomTable(store.data, W, states, atoms, mayFault),
+  }
   if (g) {
     const { start, target, marks } = g
     return {

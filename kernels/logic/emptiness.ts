@@ -139,50 +139,56 @@ export type EmptinessResult =
 const DEAD = -1
 
 /**
- * Searches the graph for a run that passes infinitely often through edges carrying each mark of
- * `allMarks` (so with `allMarks = 0`, for any reachable cycle), by Couvreur's algorithm (FM'99).
+ * The search's packed state. A class rather than closures over locals, so that the hot loop calls
+ * the same functions on every search (a closure made per search would be a new call target each
+ * time, and the optimized loop would be thrown away and compiled again).
  */
-export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: EmptinessOptions = {}): EmptinessResult {
-  const all = allMarks | 0
-  // num[v]: 0 unvisited, DEAD once its component is finished, else its DFS number (>0) while open.
-  const num = new Int32Buffer(1 << 16)
-  const active = new Int32Buffer() // open nodes in DFS order (Tarjan's stack)
-  const rootNum = new Int32Buffer() // the roots stack: DFS number of each partial component's root,
-  const rootAcc = new Int32Buffer() // the marks seen inside it,
-  const rootIn = new Int32Buffer() // and the marks of the tree edge that entered its root
-  const frameNode = new Int32Buffer() // the DFS stack: each open node, with its edge cursor's state
-  const frameCur = new Int32Buffer(CURSOR_WORDS * 1024)
-  const cursor = g.cursor ?? new StackedEdges(g)
-  let counter = 0, nodes = 0, edges = 0, maxId = -1, iterations = 0
-  let lastReport = Date.now()
+class DepthFirst {
+  /** num[v]: 0 unvisited, DEAD once its component is finished, else its DFS number (>0) while open. */
+  readonly num = new Int32Buffer(1 << 16)
+  readonly active = new Int32Buffer() // open nodes in DFS order (Tarjan's stack)
+  readonly rootNum = new Int32Buffer() // the roots stack: DFS number of each partial component's root,
+  readonly rootAcc = new Int32Buffer() // the marks seen inside it,
+  readonly rootIn = new Int32Buffer() // and the marks of the tree edge that entered its root
+  readonly frameNode = new Int32Buffer() // the DFS stack: each open node, with its edge cursor's state
+  readonly frameCur = new Int32Buffer(CURSOR_WORDS * 1024)
+  nodes = 0
+  edges = 0
+  iterations = 0
+  /** Every node id met so far is at most this (num is addressable up to it). */
+  maxId = -1
+  private lastReport = Date.now()
 
-  const push = (v: number, inMark: number) => {
-    counter++
-    nodes++
-    num.data[v] = counter
-    active.push(v)
-    rootNum.push(counter)
-    rootAcc.push(0)
-    rootIn.push(inMark)
-    const at = CURSOR_WORDS * frameNode.length
-    frameNode.push(v)
-    frameCur.ensure(at + CURSOR_WORDS)
-    cursor.open(v, frameCur.data, at)
-  }
-  const done = (r: EmptinessResult): EmptinessResult => {
-    if (opts.work) {
-      opts.work.iterations = iterations
-      opts.work.bytes = [num, active, rootNum, rootAcc, rootIn, frameNode, frameCur]
-        .reduce((b, x) => b + x.data.byteLength, cursor.bytes)
-    }
-    return r
+  constructor(private readonly g: MarkedGraph, private readonly cursor: EdgeCursor, private readonly all: number,
+              private readonly opts: EmptinessOptions) {}
+
+  /** Opens v, entered by an edge with marks `inMark`, as a new partial component. */
+  private push(v: number, inMark: number): void {
+    const n = ++this.nodes
+    this.num.data[v] = n
+    this.active.push(v)
+    this.rootNum.push(n)
+    this.rootAcc.push(0)
+    this.rootIn.push(inMark)
+    const at = CURSOR_WORDS * this.frameNode.length
+    this.frameNode.push(v)
+    this.frameCur.ensure(at + CURSOR_WORDS)
+    this.cursor.open(v, this.frameCur.data, at)
   }
 
-  for (const init of g.initial()) {
-    if (init > maxId) { maxId = init; num.ensure(init + 1) }
-    if (num.data[init] !== 0) continue
-    push(init, 0)
-    while (frameNode.length > 0) {
+  /**
+   * Searches from one initial node (the main loop, in a method of its own so that its optimized
+   * code outlives a change in the caller's loop over initial nodes): a lasso, 'stopped', or null
+   * when every component reached from it is closed and none accepts.
+   */
+  search(init: number): EmptinessResult | null {
+    const { num, active, rootNum, rootAcc, rootIn, frameNode, frameCur, cursor, all, opts } = this
+    if (init > this.maxId) { this.maxId = init; num.ensure(init + 1) }
+    if (num.data[init] !== 0) return null
+    this.push(init, 0)
+    let edges = this.edges, iterations = this.iterations, maxId = this.maxId
+    let result: EmptinessResult | null = null
+    loop: while (frameNode.length > 0) {
       iterations++
       const f = frameNode.length - 1
       const v = frameNode.data[f]
@@ -194,14 +200,14 @@ export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: Empti
         if (w > maxId) { maxId = w; num.ensure(w + 1) }
         const nw = num.data[w]
         if (nw === 0) {
-          if ((nodes & 1023) === 0) {
-            if (opts.shouldStop?.()) return done({ kind: 'stopped', nodes, edges })
+          if ((this.nodes & 1023) === 0) {
+            if (opts.shouldStop?.()) { result = { kind: 'stopped', nodes: this.nodes, edges }; break loop }
             if (opts.onProgress) {
               const now = Date.now()
-              if (now - lastReport >= 100) { lastReport = now; opts.onProgress(nodes, edges) }
+              if (now - this.lastReport >= 100) { this.lastReport = now; opts.onProgress(this.nodes, edges) }
             }
           }
-          push(w, m)
+          this.push(w, m)
         } else if (nw > 0) {
           // w is open: the edge closes a cycle; merge every partial component above w's.
           let acc = m
@@ -212,8 +218,9 @@ export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: Empti
           const r = rootAcc.length - 1
           rootAcc.data[r] |= acc
           if ((rootAcc.data[r] & all) === all) {
-            const lasso = buildLasso(g, all, num, active, rootNum.top(), maxId)
-            return done({ kind: 'lasso', ...lasso, nodes, edges })
+            const lasso = buildLasso(this.g, all, num, active, rootNum.top(), maxId)
+            result = { kind: 'lasso', ...lasso, nodes: this.nodes, edges }
+            break loop
           }
         }
         continue
@@ -223,15 +230,42 @@ export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: Empti
       frameNode.pop()
       if (rootNum.top() === num.data[v]) {
         rootNum.pop(); rootAcc.pop(); rootIn.pop()
-        let w: number
+        let x: number
         do {
-          w = active.pop()
-          num.data[w] = DEAD
-        } while (w !== v)
+          x = active.pop()
+          num.data[x] = DEAD
+        } while (x !== v)
       }
     }
+    this.edges = edges
+    this.iterations = iterations
+    this.maxId = maxId
+    return result
   }
-  return done({ kind: 'empty', nodes, edges })
+
+  /** `r`, with the work counters filled in when asked for. */
+  finish(r: EmptinessResult): EmptinessResult {
+    const work = this.opts.work
+    if (work) {
+      work.iterations = this.iterations
+      work.bytes = [this.num, this.active, this.rootNum, this.rootAcc, this.rootIn, this.frameNode, this.frameCur]
+        .reduce((b, x) => b + x.data.byteLength, this.cursor.bytes)
+    }
+    return r
+  }
+}
+
+/**
+ * Searches the graph for a run that passes infinitely often through edges carrying each mark of
+ * `allMarks` (so with `allMarks = 0`, for any reachable cycle), by Couvreur's algorithm (FM'99).
+ */
+export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: EmptinessOptions = {}): EmptinessResult {
+  const dfs = new DepthFirst(g, g.cursor ?? new StackedEdges(g), allMarks | 0, opts)
+  for (const init of g.initial()) {
+    const r = dfs.search(init)
+    if (r) return dfs.finish(r)
+  }
+  return dfs.finish({ kind: 'empty', nodes: dfs.nodes, edges: dfs.edges })
 }
 
 /**

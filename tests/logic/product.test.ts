@@ -171,8 +171,14 @@ describe('productGraph', () => {
         to.forEach((v, k) => { target.push(v); marks.push(fair[k]) })
       }
       start.push(target.length)
-      const aut = ltlToAutomaton(not(randomLtl(r, 1 + r.int(3), 2)))
-      for (const variant of [sys, { ...sys, rows: { start, target, marks } }, { ...sys, states: undefined }]) {
+      const f = randomLtl(r, 1 + r.int(3), 2)
+      const aut = ltlToAutomaton(not(f))
+      const rows = { start, target, marks }
+      const variants = [sys, { ...sys, rows }, { ...sys, states: undefined }, { ...sys, states: undefined, rows }]
+      // The whole check agrees too: verdict, node count and lasso.
+      const verdicts = variants.map((v) => checkLtl(v, f))
+      for (const v of verdicts) expect(v, show(f)).toEqual(verdicts[0])
+      for (const variant of variants) {
         const g = productGraph(variant, aut)
         const cursor = g.cursor!
         const cur = new Int32Array(2 * CURSOR_WORDS)

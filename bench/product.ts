@@ -8,7 +8,7 @@ import { explore } from '../kernels/explore/reach'
 import { fromModel } from '../kernels/logic/ltl'
 import { checkLtl } from '../kernels/logic/product'
 import { compileInstance } from '../kernels/model/instance'
-import { compileTerm } from '../kernels/model/observe'
+import { compileTerm, termMayFault } from '../kernels/model/observe'
 
 export interface ProductCase {
   name: string
@@ -44,7 +44,7 @@ export function productCases(root: URL): ProductCase[] {
     const ltl = fromModel(prop.formula, (t) => terms.push(t) - 1)
     const assignment = prop.vars.map((_, i) => i)
     const t0 = performance.now()
-    const sys = systemOf(inst, r, recorder.graph(r.states), terms.map((t) => compileTerm(inst, t, assignment)))
+    const sys = systemOf(inst, r, recorder.graph(r.states), terms.map((t) => compileTerm(inst, t, assignment)), terms.some((t) => termMayFault(inst, t)))
     const v = checkLtl(sys, ltl)
     const productSeconds = (performance.now() - t0) / 1000
     out.push({

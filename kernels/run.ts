@@ -22,7 +22,7 @@ import { rowInvariant } from './explore/invariant'
 import { MAX_TEMPORAL_PROCESSES } from './language/limits'
 import { ModelSetupError, PropertyFault } from './model/errors'
 import { compileInstance, type Instance } from './model/instance'
-import { compileTerm } from './model/observe'
+import { compileTerm, termMayFault } from './model/observe'
 import { canonicalizer, orbitTotal } from './symmetry/canon'
 import { decideCutoff } from './symmetry/cutoff'
 import { reducedTemporal } from './symmetry/temporal'
@@ -355,11 +355,13 @@ function runTemporal(route: Route): CheckRow {
   }
   let productNodes = 0
   const graph = recorder.graph(r.states)
+  // Atoms that cannot fault are computed only on the states the product reaches.
+  const mayFault = terms.some((t) => termMayFault(inst, t))
   for (const a of route.chosen) {
     const compiled = terms.map((t) => compileTerm(inst, t, a))
     let sys: System
     try {
-      sys = systemOf(inst, r, graph, compiled)
+      sys = systemOf(inst, r, graph, compiled, mayFault)
     } catch (e) {
       if (!(e instanceof PropertyFault)) throw e
       // An atom divides by zero on a reachable state: find the shortest trace to such a state.

@@ -4,6 +4,7 @@
 // chunked typed arrays. Above a size budget (or when asked) nothing is stored and each row is
 // recomputed from the successor function when the product asks for it: slower, but the memory is
 // the store's alone.
+import type { EdgeSink } from '../logic/emptiness'
 import type { System } from '../logic/product'
 import { channelIndex, type Instance } from '../model/instance'
 import { channelEmpty, isCrashed, isStable, type StateTerm } from '../model/observe'
@@ -232,54 +233,109 @@ function initialIds(inst: Instance, store: StateStore): number[] {
 
 /**
  * The system the temporal product reads, for one assignment's compiled atoms: rows of the recorded
- * graph `g`, or, when `g` is null, rows recomputed on demand from the successor function (the same
- * edges in the same order).
+ * graph `g` (read in place, `System.rows`), or, when `g` is null, rows recomputed on demand from
+ * the successor function (the same edges in the same order).
+ *
+ * An atom that faults (a division by zero) on any reachable state throws here, before the search,
+ * as the runner expects, unless `mayFault` is false (see `termMayFault`): every state's atoms are
+ * then computed only when the product first reads them, so a product that meets a few states
+ * pays for those alone.
  */
-export function systemOf(inst: Instance, r: ExploreResult, g: FairGraph | null, atoms: StateTerm[]): System {
-  const W = inst.words
-  const store = r.store
-  const data = store.data
-  const states = store.size
-  // Every reachable state's atoms, computed now: an atom that faults (a division by zero) on any
-  // reachable state throws here, before the search, as the runner expects.
-  // A row of AW words per state: atom k is bit k % 32 of word k / 32.
-  const AW = Math.max(1, Math.ceil(atoms.length / 32))
-  const masks = new Int32Array(states * AW)
-  for (let s = 0; s < states; s++) {
-    for (let k = 0; k < atoms.length; k++) if (atoms[k](data, s * W)) masks[s * AW + (k >>> 5)] |= 1 << (k & 31)
-  }
-  const atomsOf = AW === 1 ? (s: number): number => masks[s] : (s: number, w = 0): number => (w < AW ? masks[s * AW + w] : 0)
-  const initial = initialIds(inst, store)
-  const base: Omit<System, 'successors'> = { fairnessSets: g ? g.fairnessSets : fairMarks(inst).fairnessSets, initial: () => initial, atoms: atomsOf, atomWords: AW, states }
-  if (g) {
-    const { start, target, marks } = g
-    return {
-      ...base,
-      successors(s, to, fair) {
-        for (let k = start.get(s), e = start.get(s + 1); k < e; k++) {
-          to.push(target.get(k))
-          fair.push(marks.get(k))
-        }
-      },
+export function systemOf(inst: Instance, r: ExploreResult, g: FairGraph | null, atoms: StateTerm[], mayFault = true): System {
+  return new FairSystem(inst, r.store, g, atoms, mayFault)
+}
+
+/**
+ * `systemOf`'s system. A class, so that the product's hot loop calls the same `atoms` on every
+ * system it reads (a closure per system would be a new call target each time).
+ *
+ * The atoms: with at most 31 of them a state's row is one entry of a small table (bytes for up to
+ * 7 atoms, so that the table of a few hundred thousand states stays in a core's cache while the
+ * product reads it at random) with a high "known" bit, filled in when first read (or all before
+ * the search when an atom may fault). More atoms: rows of ceil(atoms / 32) words, all filled now.
+ */
+class FairSystem implements System {
+  readonly fairnessSets: number
+  readonly states: number
+  readonly atomWords: number
+  readonly rows: FairGraph | undefined
+  private readonly initialIds: number[]
+  private readonly table: Uint8Array | Int32Array
+  private readonly known: number
+  private readonly data: Uint32Array
+  private readonly W: number
+  private readonly fm: FairMarks
+  private readonly row = new RowSet()
+  private readonly src: Uint32Array
+
+  constructor(private readonly inst: Instance, private readonly store: StateStore, g: FairGraph | null, private readonly terms: StateTerm[], mayFault: boolean) {
+    const W = this.W = inst.words
+    const states = this.states = store.size
+    this.fm = fairMarks(inst)
+    this.fairnessSets = g ? g.fairnessSets : this.fm.fairnessSets
+    this.rows = g ?? undefined
+    this.initialIds = initialIds(inst, store)
+    this.src = new Uint32Array(W)
+    this.data = store.data
+    const K = terms.length
+    this.atomWords = Math.max(1, Math.ceil(K / 32))
+    if (K <= 31) {
+      this.table = K <= 7 ? new Uint8Array(states) : new Int32Array(states)
+      this.known = K <= 7 ? 0x80 : 0x80000000 | 0
+      if (mayFault) for (let s = 0; s < states; s++) this.fill(s)
+    } else {
+      // A row of atomWords words per state: atom k is bit k % 32 of word k / 32.
+      const AW = this.atomWords
+      const t = this.table = new Int32Array(states * AW)
+      this.known = 0
+      for (let s = 0; s < states; s++) {
+        for (let k = 0; k < K; k++) if (terms[k](this.data, s * W)) t[s * AW + (k >>> 5)] |= 1 << (k & 31)
+      }
     }
   }
-  const fm = fairMarks(inst)
-  const row = new RowSet()
-  const src = new Uint32Array(W)
-  return {
-    ...base,
-    successors(s, to, fair) {
-      store.get(s, src, 0)
-      const sm = fm.sourceMarks(src, 0)
-      row.reset()
-      inst.successors(src, 0, (dst, stepped, receivedFrom) => {
-        const t = store.lookup(dst, 0)
-        if (t < 0) return false
-        const m = fm.edgeMarks(sm, dst, 0, stepped, receivedFrom)
-        if (row.add(t, m)) { to.push(t); fair.push(m) }
-        return false
-      })
-    },
+
+  initial(): number[] {
+    return this.initialIds
+  }
+
+  atoms(s: number, w = 0): number {
+    if (this.known !== 0) {
+      const m = this.table[s]
+      return (m !== 0 ? m : this.fill(s)) & ~this.known
+    }
+    return w < this.atomWords ? this.table[s * this.atomWords + w] : 0
+  }
+
+  /** Computes the atoms of s into its one-word row, with the known bit. */
+  private fill(s: number): number {
+    const { terms, data } = this
+    let m = this.known
+    for (let k = 0; k < terms.length; k++) if (terms[k](data, s * this.W)) m |= 1 << k
+    this.table[s] = m
+    return m
+  }
+
+  successors(s: number, to: EdgeSink, fair: EdgeSink): void {
+    const g = this.rows
+    if (g) {
+      const { start, target, marks } = g
+      for (let k = start.get(s), e = start.get(s + 1); k < e; k++) {
+        to.push(target.get(k))
+        fair.push(marks.get(k))
+      }
+      return
+    }
+    const { store, fm, row, src } = this
+    store.get(s, src, 0)
+    const sm = fm.sourceMarks(src, 0)
+    row.reset()
+    this.inst.successors(src, 0, (dst, stepped, receivedFrom) => {
+      const t = store.lookup(dst, 0)
+      if (t < 0) return false
+      const m = fm.edgeMarks(sm, dst, 0, stepped, receivedFrom)
+      if (row.add(t, m)) { to.push(t); fair.push(m) }
+      return false
+    })
   }
 }
 

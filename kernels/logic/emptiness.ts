@@ -4,8 +4,9 @@
 // strongly connected components, each with the union of the marks seen inside it; when a back
 // edge merges components and the union covers every mark, the graph has an accepting run.
 //
-// Everything is packed: per-node tables, the DFS stack and the pending edges are Int32 buffers
-// indexed by the node ids the graph assigns. Nothing recurses.
+// Everything is packed: per-node tables and the DFS stack are Int32 buffers indexed by the node
+// ids the graph assigns, and each open node's edges are read one at a time through a cursor
+// (`EdgeCursor`) whose state is a few integers in its frame. Nothing recurses.
 //
 // A found component is turned into a short lasso afterwards: a breadth-first search from the
 // initial nodes to the nearest node of the component, then, inside the component, repeated
@@ -26,11 +27,75 @@ export interface MarkedGraph {
    * The search hands its own packed buffers, so nothing is copied from a JavaScript array.
    */
   successors(node: number, to: EdgeSink, marks: EdgeSink): void
+  /**
+   * The same edges, in the same order, read one at a time (the depth-first search uses it when
+   * present, the lasso's breadth-first searches use `successors`): a graph whose edges are
+   * already packed somewhere (a recorded fair graph) hands them out from there, and the search
+   * keeps no list of pending edges.
+   */
+  cursor?: EdgeCursor
+}
+
+/** Integers of cursor state the search keeps per open node for `EdgeCursor`. */
+export const CURSOR_WORDS = 4
+
+/**
+ * A lazy enumeration of every node's edges. The search keeps `CURSOR_WORDS` integers per open
+ * node, at `cur[at..]`, which only the cursor reads and writes; `open` and `close` come in
+ * stack order (a node opened after another is closed before it).
+ */
+export interface EdgeCursor {
+  /** Starts the edges of `node`, writing its cursor state at cur[at..]. */
+  open(node: number, cur: Int32Array, at: number): void
+  /** The next edge of `node`: its target (its marks are then in `mark`), or -1 when none is left. */
+  next(node: number, cur: Int32Array, at: number): number
+  /** The marks of the edge `next` returned last. */
+  mark: number
+  /** Ends `node`'s edges, once `next` has returned -1. */
+  close(node: number, cur: Int32Array, at: number): void
+  /** Bytes the cursor holds besides the search's tables. */
+  readonly bytes: number
+}
+
+/**
+ * The cursor of a graph that only has `successors`: each open node's edges are appended to one
+ * packed stack (cur[at] the next edge, cur[at + 1] the end, cur[at + 2] where they start) and cut
+ * off when it closes, so a parent never re-reads its descendants' edges.
+ */
+class StackedEdges implements EdgeCursor {
+  private readonly to = new Int32Buffer()
+  private readonly marks = new Int32Buffer()
+  mark = 0
+  constructor(private readonly g: MarkedGraph) {}
+
+  get bytes(): number {
+    return this.to.data.byteLength + this.marks.data.byteLength
+  }
+
+  open(node: number, cur: Int32Array, at: number): void {
+    const from = this.to.length
+    this.g.successors(node, this.to, this.marks)
+    cur[at] = from
+    cur[at + 1] = this.to.length
+    cur[at + 2] = from
+  }
+
+  next(_node: number, cur: Int32Array, at: number): number {
+    const p = cur[at]
+    if (p === cur[at + 1]) return -1
+    cur[at] = p + 1
+    this.mark = this.marks.data[p]
+    return this.to.data[p]
+  }
+
+  close(_node: number, cur: Int32Array, at: number): void {
+    this.to.length = this.marks.length = cur[at + 2]
+  }
 }
 
 /** Work counters of one search (filled in when passed as `EmptinessOptions.work`). */
 export interface EmptinessWork {
-  /** Iterations of the main loop: one per pending edge read plus one per frame popped. */
+  /** Iterations of the main loop: one per edge read plus one per frame popped. */
   iterations: number
   /** Bytes of the search's packed tables and stacks when it ended (their peak: they never shrink). */
   bytes?: number
@@ -62,7 +127,10 @@ export interface Lasso {
   edges: number
 }
 
-/** The result of `findAcceptingLasso`. `nodes` and `edges` count what the search explored. */
+/**
+ * The result of `findAcceptingLasso`. `nodes` and `edges` count what the search explored: the
+ * edges it read (every edge of every node reached, when the result is 'empty').
+ */
 export type EmptinessResult =
   | { kind: 'empty'; nodes: number; edges: number }
   | Lasso
@@ -71,77 +139,75 @@ export type EmptinessResult =
 const DEAD = -1
 
 /**
- * Searches the graph for a run that passes infinitely often through edges carrying each mark of
- * `allMarks` (so with `allMarks = 0`, for any reachable cycle), by Couvreur's algorithm (FM'99).
+ * The search's packed state. A class rather than closures over locals, so that the hot loop calls
+ * the same functions on every search (a closure made per search would be a new call target each
+ * time, and the optimized loop would be thrown away and compiled again).
  */
-export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: EmptinessOptions = {}): EmptinessResult {
-  const all = allMarks | 0
-  // num[v]: 0 unvisited, DEAD once its component is finished, else its DFS number (>0) while open.
-  const num = new Int32Buffer(1 << 16)
-  const active = new Int32Buffer() // open nodes in DFS order (Tarjan's stack)
-  const rootNum = new Int32Buffer() // the roots stack: DFS number of each partial component's root,
-  const rootAcc = new Int32Buffer() // the marks seen inside it,
-  const rootIn = new Int32Buffer() // and the marks of the tree edge that entered its root
-  const frameNode = new Int32Buffer() // the DFS stack: node, where its edges start, its next pending edge
-  const frameStart = new Int32Buffer()
-  const framePos = new Int32Buffer()
-  const edgeTo = new Int32Buffer() // pending edges of every frame, each frame's edges contiguous
-  const edgeMark = new Int32Buffer()
-  let counter = 0, nodes = 0, edges = 0, maxId = -1, iterations = 0
-  let lastReport = Date.now()
+class DepthFirst {
+  /** num[v]: 0 unvisited, DEAD once its component is finished, else its DFS number (>0) while open. */
+  readonly num = new Int32Buffer(1 << 16)
+  readonly active = new Int32Buffer() // open nodes in DFS order (Tarjan's stack)
+  readonly rootNum = new Int32Buffer() // the roots stack: DFS number of each partial component's root,
+  readonly rootAcc = new Int32Buffer() // the marks seen inside it,
+  readonly rootIn = new Int32Buffer() // and the marks of the tree edge that entered its root
+  readonly frameNode = new Int32Buffer() // the DFS stack: each open node, with its edge cursor's state
+  readonly frameCur = new Int32Buffer(CURSOR_WORDS * 1024)
+  nodes = 0
+  edges = 0
+  iterations = 0
+  /** Every node id met so far is at most this (num is addressable up to it). */
+  maxId = -1
+  private lastReport = Date.now()
 
-  const push = (v: number, inMark: number) => {
-    counter++
-    nodes++
-    num.data[v] = counter
-    active.push(v)
-    rootNum.push(counter)
-    rootAcc.push(0)
-    rootIn.push(inMark)
-    frameNode.push(v)
-    const from = edgeTo.length
-    frameStart.push(from)
-    framePos.push(from)
-    g.successors(v, edgeTo, edgeMark)
-    const end = edgeTo.length
-    edges += end - from
-    const td = edgeTo.data
-    let top = maxId
-    for (let i = from; i < end; i++) if (td[i] > top) top = td[i]
-    if (top > maxId) { maxId = top; num.ensure(top + 1) }
-  }
-  const done = (r: EmptinessResult): EmptinessResult => {
-    if (opts.work) {
-      opts.work.iterations = iterations
-      opts.work.bytes = [num, active, rootNum, rootAcc, rootIn, frameNode, frameStart, framePos, edgeTo, edgeMark]
-        .reduce((b, x) => b + x.data.byteLength, 0)
-    }
-    return r
+  constructor(private readonly g: MarkedGraph, private readonly cursor: EdgeCursor, private readonly all: number,
+              private readonly opts: EmptinessOptions) {}
+
+  /** Opens v, entered by an edge with marks `inMark`, as a new partial component. */
+  private push(v: number, inMark: number): void {
+    const n = ++this.nodes
+    this.num.data[v] = n
+    this.active.push(v)
+    this.rootNum.push(n)
+    this.rootAcc.push(0)
+    this.rootIn.push(inMark)
+    const at = CURSOR_WORDS * this.frameNode.length
+    this.frameNode.push(v)
+    this.frameCur.ensure(at + CURSOR_WORDS)
+    this.cursor.open(v, this.frameCur.data, at)
   }
 
-  for (const init of g.initial()) {
-    if (init > maxId) { maxId = init; num.ensure(init + 1) }
-    if (num.data[init] !== 0) continue
-    push(init, 0)
-    while (frameNode.length > 0) {
+  /**
+   * Searches from one initial node (the main loop, in a method of its own so that its optimized
+   * code outlives a change in the caller's loop over initial nodes): a lasso, 'stopped', or null
+   * when every component reached from it is closed and none accepts.
+   */
+  search(init: number): EmptinessResult | null {
+    const { num, active, rootNum, rootAcc, rootIn, frameNode, frameCur, cursor, all, opts } = this
+    if (init > this.maxId) { this.maxId = init; num.ensure(init + 1) }
+    if (num.data[init] !== 0) return null
+    this.push(init, 0)
+    let edges = this.edges, iterations = this.iterations, maxId = this.maxId
+    let result: EmptinessResult | null = null
+    loop: while (frameNode.length > 0) {
       iterations++
       const f = frameNode.length - 1
       const v = frameNode.data[f]
-      // Only the top frame is ever worked on, so its pending edges run to the end of the buffer.
-      const p = framePos.data[f]
-      if (p < edgeTo.length) {
-        framePos.data[f] = p + 1
-        const w = edgeTo.data[p], m = edgeMark.data[p]
+      // Only the top frame is ever worked on: its cursor reads the next edge of v.
+      const w = cursor.next(v, frameCur.data, CURSOR_WORDS * f)
+      if (w >= 0) {
+        edges++
+        const m = cursor.mark
+        if (w > maxId) { maxId = w; num.ensure(w + 1) }
         const nw = num.data[w]
         if (nw === 0) {
-          if ((nodes & 1023) === 0) {
-            if (opts.shouldStop?.()) return done({ kind: 'stopped', nodes, edges })
+          if ((this.nodes & 1023) === 0) {
+            if (opts.shouldStop?.()) { result = { kind: 'stopped', nodes: this.nodes, edges }; break loop }
             if (opts.onProgress) {
               const now = Date.now()
-              if (now - lastReport >= 100) { lastReport = now; opts.onProgress(nodes, edges) }
+              if (now - this.lastReport >= 100) { this.lastReport = now; opts.onProgress(this.nodes, edges) }
             }
           }
-          push(w, m)
+          this.push(w, m)
         } else if (nw > 0) {
           // w is open: the edge closes a cycle; merge every partial component above w's.
           let acc = m
@@ -152,29 +218,54 @@ export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: Empti
           const r = rootAcc.length - 1
           rootAcc.data[r] |= acc
           if ((rootAcc.data[r] & all) === all) {
-            const lasso = buildLasso(g, all, num, active, rootNum.top(), maxId)
-            return done({ kind: 'lasso', ...lasso, nodes, edges })
+            const lasso = buildLasso(this.g, all, num, active, rootNum.top(), maxId)
+            result = { kind: 'lasso', ...lasso, nodes: this.nodes, edges }
+            break loop
           }
         }
         continue
       }
-      // v's edges are done: drop its frame and its edges (cut back to where they start, so the
-      // parent resumes at its own cursor and never re-reads its descendants' edges), and, when v
-      // is a root, close its component.
+      // v's edges are done: drop its frame, and, when v is a root, close its component.
+      cursor.close(v, frameCur.data, CURSOR_WORDS * f)
       frameNode.pop()
-      framePos.pop()
-      edgeTo.length = edgeMark.length = frameStart.pop()
       if (rootNum.top() === num.data[v]) {
         rootNum.pop(); rootAcc.pop(); rootIn.pop()
-        let w: number
+        let x: number
         do {
-          w = active.pop()
-          num.data[w] = DEAD
-        } while (w !== v)
+          x = active.pop()
+          num.data[x] = DEAD
+        } while (x !== v)
       }
     }
+    this.edges = edges
+    this.iterations = iterations
+    this.maxId = maxId
+    return result
   }
-  return done({ kind: 'empty', nodes, edges })
+
+  /** `r`, with the work counters filled in when asked for. */
+  finish(r: EmptinessResult): EmptinessResult {
+    const work = this.opts.work
+    if (work) {
+      work.iterations = this.iterations
+      work.bytes = [this.num, this.active, this.rootNum, this.rootAcc, this.rootIn, this.frameNode, this.frameCur]
+        .reduce((b, x) => b + x.data.byteLength, this.cursor.bytes)
+    }
+    return r
+  }
+}
+
+/**
+ * Searches the graph for a run that passes infinitely often through edges carrying each mark of
+ * `allMarks` (so with `allMarks = 0`, for any reachable cycle), by Couvreur's algorithm (FM'99).
+ */
+export function findAcceptingLasso(g: MarkedGraph, allMarks: number, opts: EmptinessOptions = {}): EmptinessResult {
+  const dfs = new DepthFirst(g, g.cursor ?? new StackedEdges(g), allMarks | 0, opts)
+  for (const init of g.initial()) {
+    const r = dfs.search(init)
+    if (r) return dfs.finish(r)
+  }
+  return dfs.finish({ kind: 'empty', nodes: dfs.nodes, edges: dfs.edges })
 }
 
 /**

@@ -10,7 +10,8 @@
 // the source's, are the automaton's transition marks (see automaton.ts).
 import { type Automaton, type TranslationOptions, TranslationAborted, allAcceptance, letterOf, ltlToAutomaton } from './automaton'
 import { Int32Buffer } from '../base/buffer'
-import { type EdgeSink, type EmptinessOptions, type MarkedGraph, findAcceptingLasso } from './emptiness'
+import type { ChunkedInt32 } from '../base/chunked'
+import { type EdgeCursor, type EdgeSink, type EmptinessOptions, type MarkedGraph, findAcceptingLasso } from './emptiness'
 import { type Ltl, not } from './ltl'
 import { PairMap } from '../base/pairmap'
 
@@ -20,6 +21,11 @@ export interface System {
   initial(): number[]
   /** Appends the successors of `s` to `to` and the fairness marks of each edge (bits 0..f-1) to `fair`. */
   successors(s: number, to: EdgeSink, fair: EdgeSink): void
+  /**
+   * The same edges as ranges of packed tables, when the system keeps them (a recorded fair graph):
+   * the product's search then reads them where they are, one at a time, instead of copying rows.
+   */
+  rows?: EdgeRows
   /**
    * The atoms that hold in state s, one 32-bit word at a time: word w has atom 32w + i at bit i.
    * A system whose formulas use at most 32 atoms may ignore `word` (it is then always 0).
@@ -34,6 +40,16 @@ export interface System {
    * no hash table (while that fits `DENSE_NODES`).
    */
   states?: number
+}
+
+/**
+ * A system's edges in place: those of state s are cells start.get(s) .. start.get(s + 1) of
+ * `target` and `marks`, in the order `System.successors` appends them.
+ */
+export interface EdgeRows {
+  start: ChunkedInt32
+  target: ChunkedInt32
+  marks: ChunkedInt32
 }
 
 /** Largest id range numbered densely (4 bytes of the search's table per id: 128 MiB at most). */
@@ -126,6 +142,97 @@ export function labelTest(sys: AtomSource, aut: Automaton): { direct: boolean; h
   }
 }
 
+/**
+ * The product's edges read lazily (`EdgeCursor`): for node (s, q) the cursor walks s's system
+ * edges and, for each, q's automaton successors whose label holds at the target, in the order
+ * `successors` appends them. Its state per open node: cur[at] the system edge, cur[at + 1] the end
+ * of s's edges, cur[at + 2] the next automaton edge of q, cur[at + 3] q. With `EdgeRows` the
+ * system edges are read in place; without, each open node's row is recomputed onto one packed
+ * stack (and cut off when the node closes; `rowFrom` remembers where each row starts).
+ */
+class ProductEdges implements EdgeCursor {
+  mark = 0
+  private readonly rows: EdgeRows | null
+  private readonly to = new Int32Buffer()
+  private readonly fair = new Int32Buffer()
+  private readonly rowFrom = new Int32Buffer()
+  private readonly succStart: Int32Array
+  private readonly succ: Int32Array
+  private readonly accept: Uint32Array
+  private readonly mustTrue: Uint32Array
+  private readonly mustFalse: Uint32Array
+
+  constructor(private readonly sys: System, aut: Automaton, private readonly Q: number, private readonly pairs: PairMap | null,
+              private readonly direct: boolean, private readonly holds: (r: number, t: number) => boolean) {
+    this.rows = sys.rows ?? null
+    this.succStart = aut.succStart
+    this.succ = aut.succ
+    this.accept = aut.accept
+    this.mustTrue = aut.mustTrue
+    this.mustFalse = aut.mustFalse
+  }
+
+  get bytes(): number {
+    return this.to.data.byteLength + this.fair.data.byteLength + this.rowFrom.data.byteLength
+  }
+
+  open(node: number, cur: Int32Array, at: number): void {
+    const { pairs, Q, rows } = this
+    const s = pairs ? pairs.first.data[node] : Math.floor(node / Q)
+    const q = pairs ? pairs.second.data[node] : node - s * Q
+    let from: number, end: number
+    if (rows) {
+      from = rows.start.get(s)
+      end = rows.start.get(s + 1)
+    } else {
+      from = this.to.length
+      this.rowFrom.push(from)
+      this.sys.successors(s, this.to, this.fair)
+      end = this.to.length
+    }
+    // Positioned before the first system edge, with q's automaton edges used up.
+    cur[at] = from - 1
+    cur[at + 1] = end
+    cur[at + 2] = this.succStart[q + 1]
+    cur[at + 3] = q
+  }
+
+  next(_node: number, cur: Int32Array, at: number): number {
+    const { rows, succ, mustTrue, mustFalse, direct } = this
+    const q = cur[at + 3], e = cur[at + 1]
+    const from = this.succStart[q], end = this.succStart[q + 1]
+    const toData = this.to.data
+    let k = cur[at], j = cur[at + 2]
+    for (;;) {
+      if (j >= end) {
+        if (++k >= e) {
+          cur[at] = e
+          return -1
+        }
+        j = from
+        continue
+      }
+      const t = rows ? rows.target.get(k) : toData[k]
+      const a = direct ? this.sys.atoms(t, 0) : 0
+      while (j < end) {
+        const r = succ[j++]
+        // labelHolds(aut, r, a), inlined in the direct case: this is the innermost loop of the whole check.
+        if (direct ? ((a & mustTrue[r]) ^ mustTrue[r]) === 0 && (a & mustFalse[r]) === 0 : this.holds(r, t)) {
+          cur[at] = k
+          cur[at + 2] = j
+          this.mark = ((rows ? rows.marks.get(k) : this.fair.data[k]) | (this.accept[q] << this.sys.fairnessSets)) | 0
+          return this.pairs ? this.pairs.id(t, r) : t * this.Q + r
+        }
+      }
+    }
+  }
+
+  close(): void {
+    if (this.rows) return
+    this.to.length = this.fair.length = this.rowFrom.pop()
+  }
+}
+
 /** The product of `sys` with `aut`; see the file comment for the label and mark conventions. */
 export function productGraph(sys: System, aut: Automaton): ProductGraph {
   const f = sys.fairnessSets
@@ -143,6 +250,7 @@ export function productGraph(sys: System, aut: Automaton): ProductGraph {
   return {
     allMarks,
     dense,
+    cursor: new ProductEdges(sys, aut, Q, pairs, direct, holds),
     get size() { return pairs ? pairs.size : sys.states! * Q },
     initial() {
       const ids: number[] = []

@@ -116,6 +116,26 @@ export function compileTerm(inst: Instance, term: Term, assignment: number[]): S
   throw new Error(`unknown term ${(term as Term).k}`)
 }
 
+/**
+ * Whether evaluating the term can throw a PropertyFault on some state: it divides or takes a
+ * remainder by something other than a nonzero literal or constant. A term for which this is false
+ * never faults, so its values may be computed only on the states a search asks about.
+ */
+export function termMayFault(inst: Instance, term: Term): boolean {
+  switch (term.k) {
+    case 'neg': return termMayFault(inst, term.arg)
+    case 'min':
+    case 'max': return termMayFault(inst, term.left) || termMayFault(inst, term.right)
+    case 'bin': {
+      if (termMayFault(inst, term.left) || termMayFault(inst, term.right)) return true
+      if (term.op !== '/' && term.op !== '%') return false
+      const d = term.right
+      return !((d.k === 'lit' && d.value !== 0) || (d.k === 'const' && inst.constants[d.index] !== 0))
+    }
+    default: return false
+  }
+}
+
 /** Whether process i (0-based) is crashed in the state. */
 export function isCrashed(inst: Instance, i: number): (words: Uint32Array, off: number) => boolean {
   const f = inst.layout.alive[i]

@@ -10,6 +10,10 @@ import { FairGraphRecorder, systemOf } from '../../kernels/explore/fairgraph'
 import { explore } from '../../kernels/explore/reach'
 import { canonicalState } from '../../kernels/model/decode'
 import { compileInstance, type Instance } from '../../kernels/model/instance'
+import { PropertyFault } from '../../kernels/model/errors'
+import { compileTerm, type StateTerm, termMayFault } from '../../kernels/model/observe'
+import type { Term } from '../../kernels/language/model'
+import { fromModel } from '../../kernels/logic/ltl'
 import { planRows, runRow } from '../../kernels/run'
 import { generateNotebook, generateProperties } from '../reference/generate'
 import { referenceGraph } from '../reference/interpreter'
@@ -127,5 +131,77 @@ describe('ChunkedInt32', () => {
     expect(c.length).toBe(n)
     for (const k of [0, 4095, 4096, 16383, 16384, (1 << 20) - 1, 1 << 20, (1 << 21) + 1, n - 1]) expect(c.get(k)).toBe(Math.imul(k, 0x9e3779b1))
     expect(c.bytes).toBe(3 * (1 << 20) * 4)
+  })
+})
+
+describe('system atoms', () => {
+  // The 92 states of a generated protocol, and atoms that hash their words to a bit.
+  const text = generateNotebook(1)
+  const nb = analyzeNotebook(text)
+  const protocol = nb.protocols[0]
+  const inst = compileInstance(protocol, 2, protocol.consts.map((c) => c.value))
+  const rec = new FairGraphRecorder(inst)
+  const r = explore(inst, { edges: rec, limit: 3000 })
+  const graph = rec.graph(r.states)
+  const W = inst.words
+  const bitAtoms = (count: number, calls: number[]): StateTerm[] => Array.from({ length: count }, (_, k) => (w: Uint32Array, o: number) => {
+    calls[o / W] = (calls[o / W] ?? 0) + 1
+    return (Math.imul(w[o + (k % W)] + k, 0x9e3779b1) >>> 29) & 1
+  })
+
+  it('reads the atoms of every state as evaluating them there gives, computed on first read or all at once, with 3, 12 and 40 atoms', () => {
+    expect(r.states).toBeGreaterThan(50)
+    for (const count of [3, 12, 40]) {
+      const atoms = bitAtoms(count, [])
+      for (const mayFault of [false, true]) {
+        const sys = systemOf(inst, r, graph, atoms, mayFault)
+        expect(sys.atomWords).toBe(Math.ceil(count / 32))
+        // Backwards, so that rows are filled out of order when computed lazily; then again, from the table.
+        for (const pass of [0, 1]) {
+          for (let s = r.states - 1; s >= 0; s--) {
+            for (let w = 0; w < sys.atomWords!; w++) {
+              let want = 0
+              for (let k = 32 * w; k < Math.min(count, 32 * w + 32); k++) if (atoms[k](r.store.data, s * W)) want |= 1 << (k & 31)
+              expect(sys.atoms(s, w), `${count} atoms, state ${s}, word ${w}, pass ${pass}`).toBe(want)
+            }
+          }
+        }
+      }
+    }
+  })
+
+  it('evaluates atoms that cannot fault only on the states read, each once, and every state up front otherwise', () => {
+    const lazy: number[] = [], eager: number[] = []
+    const a = systemOf(inst, r, graph, bitAtoms(3, lazy), false)
+    const b = systemOf(inst, r, graph, bitAtoms(3, eager), true)
+    expect(lazy.length).toBe(0)
+    expect(eager.filter((c) => c === 3).length).toBe(r.states)
+    for (const s of [5, 7, 5, 5]) { a.atoms(s); b.atoms(s) }
+    expect(lazy.filter((c) => c > 0)).toEqual([3, 3])
+    expect(eager.every((c) => c === 3)).toBe(true)
+  })
+
+  it('throws the fault of an atom that divides by zero on any reachable state before the search, when it may fault', () => {
+    const last = r.states - 1
+    const faulty: StateTerm = (w, o) => { if (o === last * W) throw new PropertyFault({ line: 1, column: 1, from: 0, to: 0 } as never, 'division'); return 0 }
+    expect(() => systemOf(inst, r, graph, [faulty], true)).toThrow(PropertyFault)
+    expect(() => systemOf(inst, r, null, [faulty], true)).toThrow(PropertyFault)
+  })
+
+  it('tells which terms may fault: division or remainder by anything but a nonzero literal or constant', () => {
+    const ferry = analyzeNotebook('# ferry\n\n```protocol\nprotocol ferry {\n  const two = 2\n  const nought = 0\n  timing synchronous(delay: 1, idle: 1)\n' +
+      '  state b: 0..2 = 0\n  step { b := min(b + 1, 2) }\n}\n```\n\n```property\n' +
+      'property a = forall p: always (p.b / 2 >= 0)\nproperty b = forall p: always (p.b % two >= 0)\nproperty c = forall p: always (6 / (p.b - 1) > 0)\n' +
+      'property d = forall p: always (p.b % nought >= 0)\nproperty e = forall p: eventually always (min(p.b, 6 % p.b) >= 0)\nproperty f = forall p: always (p.b + 1 > 0 and alive(p))\n' +
+      '```\n\n```check\ncheck ferry: a, b, c, d, e, f at N = 1\n```\n')
+    expect(ferry.diagnostics.filter((d) => d.severity === 'error')).toEqual([])
+    const fi = compileInstance(ferry.protocols[0], 1, ferry.protocols[0].consts.map((c) => c.value))
+    const verdicts = ferry.checks[0].properties.map((prop) => {
+      const terms: Term[] = []
+      fromModel(prop.formula, (t) => terms.push(t) - 1)
+      for (const t of terms) compileTerm(fi, t, [0])
+      return [prop.name, terms.some((t) => termMayFault(fi, t))]
+    })
+    expect(verdicts).toEqual([['a', false], ['b', false], ['c', true], ['d', true], ['e', true], ['f', false]])
   })
 })

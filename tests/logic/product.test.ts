@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest'
 import { ltlToAutomaton } from '../../kernels/logic/automaton'
-import { findAcceptingLasso } from '../../kernels/logic/emptiness'
+import { ChunkedInt32 } from '../../kernels/base/chunked'
+import { CURSOR_WORDS, findAcceptingLasso } from '../../kernels/logic/emptiness'
 import { always, atom, eventually, type Ltl, next, not, show, until } from '../../kernels/logic/ltl'
 import { checkLtl, type LtlVerdict, productGraph } from '../../kernels/logic/product'
 import { type ExplicitSystem, explicitSystem, holdsOn, lassosOf, Random, randomLtl, randomSystem, wordOf } from './lasso'
@@ -154,5 +155,55 @@ describe('productGraph', () => {
     }
     expect(violated).toBeGreaterThan(30)
     expect(violated).toBeLessThan(270)
+  })
+
+  it('reads each node\'s edges lazily, in place or recomputed, exactly as successors appends them', () => {
+    // Oracle: `successors`, which builds each row whole from the system's own `successors`.
+    const r = new Random(91)
+    for (let t = 0; t < 200; t++) {
+      const sys = randomSystem(r, 2, 8, r.int(3))
+      // The same edges as packed rows, as a recorded fair graph hands them to the product.
+      const start = new ChunkedInt32(), target = new ChunkedInt32(), marks = new ChunkedInt32()
+      for (let s = 0; s < sys.states; s++) {
+        start.push(target.length)
+        const to: number[] = [], fair: number[] = []
+        sys.successors(s, to, fair)
+        to.forEach((v, k) => { target.push(v); marks.push(fair[k]) })
+      }
+      start.push(target.length)
+      const f = randomLtl(r, 1 + r.int(3), 2)
+      const aut = ltlToAutomaton(not(f))
+      const rows = { start, target, marks }
+      const variants = [sys, { ...sys, rows }, { ...sys, states: undefined }, { ...sys, states: undefined, rows }]
+      // The whole check agrees too: verdict, node count and lasso.
+      const verdicts = variants.map((v) => checkLtl(v, f))
+      for (const v of verdicts) expect(v, show(f)).toEqual(verdicts[0])
+      for (const variant of variants) {
+        const g = productGraph(variant, aut)
+        const cursor = g.cursor!
+        const cur = new Int32Array(2 * CURSOR_WORDS)
+        // Every node the eager rows reach, each read through the cursor; a second node opened
+        // above the first (as the search nests them) leaves the first one's cursor intact.
+        const seen = new Set(g.initial()), todo = [...seen]
+        while (todo.length > 0) {
+          const v = todo.pop()!
+          const to: number[] = [], ms: number[] = []
+          g.successors(v, to, ms)
+          cursor.open(v, cur, 0)
+          const first = cursor.next(v, cur, 0), firstMark = cursor.mark
+          cursor.open(v, cur, CURSOR_WORDS)
+          const inner: number[][] = []
+          for (let w = cursor.next(v, cur, CURSOR_WORDS); w >= 0; w = cursor.next(v, cur, CURSOR_WORDS)) inner.push([w, cursor.mark])
+          cursor.close(v, cur, CURSOR_WORDS)
+          const outer: number[][] = first < 0 ? [] : [[first, firstMark]]
+          for (let w = cursor.next(v, cur, 0); w >= 0; w = cursor.next(v, cur, 0)) outer.push([w, cursor.mark])
+          cursor.close(v, cur, 0)
+          const want = to.map((w, k) => [w, ms[k]])
+          expect(inner).toEqual(want)
+          expect(outer).toEqual(want)
+          for (const w of to) if (!seen.has(w)) { seen.add(w); todo.push(w) }
+        }
+      }
+    }
   })
 })

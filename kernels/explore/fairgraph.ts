@@ -153,7 +153,7 @@ export class FairGraphRecorder implements EdgeRecorder {
   private readonly row = new RowSet()
   private base = 0
   private baseKnown = false
-  private src = new Uint32Array(0)
+  private src: Uint32Array = new Uint32Array(0)
 
   /** `budget`: edges kept at most; 0 records nothing (rows are then recomputed on demand). */
   constructor(inst: Instance, private readonly budget = RECORD_EDGE_BUDGET) {

@@ -325,7 +325,7 @@ class ParallelSearch {
         this.lastReport = now
         const seconds = (now - this.t0) / 1000
         const states = this.size + (kind === PHASE.LEVEL ? Math.max(0, Atomics.load(ctrl, C.RESERVE)) : 0)
-        opts.onProgress({ states, transitions: this.transitions, statesPerSecond: seconds > 0 ? states / seconds : 0, seconds })
+        opts.onProgress({ states, transitions: this.transitions, statesPerSecond: seconds > 0 ? states / seconds : 0, seconds, workers: this.P })
       }
     }
   }

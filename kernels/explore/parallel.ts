@@ -103,7 +103,7 @@ export const PHASE = { JOB: 1, CLEAR: 2, REHASH: 3, LEVEL: 4, QUIT: 7 } as const
 const BLOCK = 32
 
 type GrowableOptions = { maxByteLength: number }
-const Growable = SharedArrayBuffer as unknown as new (length: number, opts: GrowableOptions) => SharedArrayBuffer
+type GrowableConstructor = new (length: number, opts: GrowableOptions) => SharedArrayBuffer
 type Grow = SharedArrayBuffer & { grow(n: number): void; maxByteLength: number }
 
 /** Largest buffers (bytes) reserved per pool; reserved address space, committed as used. */
@@ -116,6 +116,9 @@ export function createSharedBuffers(caps: BufferCaps = NODE_CAPS, growable = tru
     const b = () => new SharedArrayBuffer(65536)
     return { ctrl: new SharedArrayBuffer(CTRL_WORDS * 4), err: new SharedArrayBuffer(4096), job: b(), table: b(), arena: b(), stage: b(), minSrc: b(), slotOf: b(), blocks: b() }
   }
+  // Named here, not when the module loads: a page that is not cross-origin isolated has no
+  // SharedArrayBuffer at all, and still loads this module (through the kernel's facade).
+  const Growable = SharedArrayBuffer as unknown as GrowableConstructor
   return {
     ctrl: new SharedArrayBuffer(CTRL_WORDS * 4),
     err: new SharedArrayBuffer(4096),

@@ -32,10 +32,11 @@ let loading: Promise<SolverHandle> | null = null
  * A question runs on one of the solver's own threads while this thread goes on (`solver.check()`
  * is a promise). The package frees the solver's terms from a FinalizationRegistry, that is from
  * this thread at whatever time the garbage collector picks; a free that lands while a question
- * runs on the same context changes the context's term table under the question's feet. In
- * Chromium that was seen as "memory access out of bounds" in `ast_manager::delete_node` on a
- * solver thread, or as a question that never answers. So the package's registry is made here, and
- * holds the frees that fall during a question until no question runs.
+ * runs on the same context changes the context's term table under the question's feet (a Z3
+ * context is not safe to use from two threads at once). Chromium was seen to fault in
+ * `ast_manager::delete_node` on a solver thread ("memory access out of bounds"), or to leave a
+ * question unanswered, as such a race would. So the package's registry is made here, and holds
+ * the frees that fall during a question until no question runs.
  */
 let asking = 0
 const heldFrees: (() => void)[] = []

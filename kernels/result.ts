@@ -133,4 +133,9 @@ export interface Progress {
   transitions: number
   statesPerSecond: number
   seconds: number
+  /**
+   * How many workers explore the row's current level: more than 1 on a parallel pool
+   * (explore/parallel.ts, once levels are wide enough); absent for a search on one thread.
+   */
+  workers?: number
 }

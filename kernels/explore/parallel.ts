@@ -124,7 +124,7 @@ export const PHASE = { JOB: 1, CLEAR: 2, REHASH: 3, LEVEL: 4, QUIT: 7 } as const
 const BLOCK = 32
 
 type GrowableOptions = { maxByteLength: number }
-const Growable = SharedArrayBuffer as unknown as new (length: number, opts: GrowableOptions) => SharedArrayBuffer
+type GrowableConstructor = new (length: number, opts: GrowableOptions) => SharedArrayBuffer
 type Grow = SharedArrayBuffer & { grow(n: number): void; maxByteLength: number }
 
 /** Largest buffers (bytes) reserved per pool; reserved address space, committed as used. */
@@ -137,6 +137,9 @@ export function createSharedBuffers(caps: BufferCaps = NODE_CAPS, growable = tru
     const b = () => new SharedArrayBuffer(65536)
     return { ctrl: new SharedArrayBuffer(CTRL_WORDS * 4), err: new SharedArrayBuffer(4096), job: b(), table: b(), arena: b(), stage: b(), minSrc: b(), slotOf: b(), blocks: b(), edges: b(), rows: b() }
   }
+  // Named here, not when the module loads: a page that is not cross-origin isolated has no
+  // SharedArrayBuffer at all, and still loads this module (through the kernel's facade).
+  const Growable = SharedArrayBuffer as unknown as GrowableConstructor
   return {
     ctrl: new SharedArrayBuffer(CTRL_WORDS * 4),
     err: new SharedArrayBuffer(4096),
@@ -403,7 +406,7 @@ class ParallelSearch {
         this.lastReport = now
         const seconds = (now - this.t0) / 1000
         const states = this.size + (kind === PHASE.LEVEL ? Math.max(0, Atomics.load(ctrl, C.RESERVE)) : 0)
-        opts.onProgress({ states, transitions: this.transitions, statesPerSecond: seconds > 0 ? states / seconds : 0, seconds })
+        opts.onProgress({ states, transitions: this.transitions, statesPerSecond: seconds > 0 ? states / seconds : 0, seconds, workers: this.P })
       }
     }
   }

@@ -17,6 +17,8 @@ export interface ExploreProgress {
   transitions: number
   statesPerSecond: number
   seconds: number
+  /** Workers exploring the current level (parallel.ts); absent on one thread. */
+  workers?: number
 }
 
 /**

@@ -9,7 +9,7 @@ import { compileInstance, type Instance } from '../model/instance'
 import { encodeTick, type EncodedError } from './encode'
 import { conjunctsOf, encodeConjunct, explicitConjunct, type Conjunct } from './invariant'
 import { initialState, readState, stateVars, typeSpace } from './space'
-import { loadSolver, type Z3 } from './solver'
+import { loadSolver, solving, type Z3 } from './solver'
 
 /** Guarded handler runs beyond which an encoding is refused as too large for the solver's budget. */
 export const DEFAULT_BUDGET = 20_000
@@ -53,7 +53,7 @@ async function ask(z: Z3, solver: Solver<'twofold'>, opts: InductionOptions): Pr
   const timer = opts.shouldStop ? setInterval(() => { if (stopped || opts.shouldStop!()) { stopped = true; z.interrupt() } }, 100) : null
   opts.onWait?.(true)
   try {
-    const answer = await solver.check()
+    const answer = await solving(() => solver.check())
     return stopped ? 'unknown' : answer
   } finally {
     if (timer) clearInterval(timer)

@@ -28,6 +28,40 @@ export const Z3_PACKAGE_VERSION = '5.2.0'
 
 let loading: Promise<SolverHandle> | null = null
 
+/*
+ * A question runs on one of the solver's own threads while this thread goes on (`solver.check()`
+ * is a promise). The package frees the solver's terms from a FinalizationRegistry, that is from
+ * this thread at whatever time the garbage collector picks; a free that lands while a question
+ * runs on the same context changes the context's term table under the question's feet (a Z3
+ * context is not safe to use from two threads at once). Chromium was seen to fault in
+ * `ast_manager::delete_node` on a solver thread ("memory access out of bounds"), or to leave a
+ * question unanswered, as such a race would. So the package's registry is made here, and holds
+ * the frees that fall during a question until no question runs.
+ */
+let asking = 0
+const heldFrees: (() => void)[] = []
+const NativeRegistry = globalThis.FinalizationRegistry
+
+/** A FinalizationRegistry whose callbacks wait while a solver question runs. */
+class QuietRegistry<T> {
+  private readonly inner: FinalizationRegistry<T>
+  constructor(callback: (held: T) => void) {
+    this.inner = new NativeRegistry<T>((held) => { if (asking > 0) heldFrees.push(() => callback(held)); else callback(held) })
+  }
+  register(target: object, held: T, token?: object): void { this.inner.register(target, held, token) }
+  unregister(token: object): boolean { return this.inner.unregister(token) }
+}
+
+/** Runs one solver question; the solver's terms are not freed while it runs (see above). */
+export async function solving<T>(question: () => Promise<T>): Promise<T> {
+  asking++
+  try {
+    return await question()
+  } finally {
+    if (--asking === 0) for (const free of heldFrees.splice(0)) free()
+  }
+}
+
 function inBrowser(): boolean {
   return typeof window !== 'undefined' || typeof (globalThis as { WorkerGlobalScope?: unknown }).WorkerGlobalScope !== 'undefined'
 }
@@ -59,7 +93,11 @@ export function loadSolver(): Promise<SolverHandle> {
     loading = (async () => {
       const overrides = inBrowser() ? await browserOverrides() : {}
       const mod = await import('z3-solver')
-      const api = await mod.init(overrides)
+      // The package makes its registry in `init`: it gets ours (and every other code still the native one).
+      const g = globalThis as { FinalizationRegistry: unknown }
+      g.FinalizationRegistry = QuietRegistry
+      let api: Awaited<ReturnType<typeof mod.init>>
+      try { api = await mod.init(overrides) } finally { g.FinalizationRegistry = NativeRegistry }
       const z = new api.Context('twofold') as Z3
       return {
         z,

@@ -259,7 +259,8 @@ export class CheckLineView {
   /** Shows a running row's counts; `where` says which row (`row 2 of 5`, `for the record`). */
   progress(p: Progress, where: string): void {
     const n = (x: number) => Math.round(x).toLocaleString('en-US')
-    this.status.textContent = `${where}: ${p.property} with ${p.processes} ${p.processes === 1 ? 'process' : 'processes'} · ${n(p.states)} states · ${n(p.statesPerSecond)} states/s · ${p.seconds.toFixed(1)} s`
+    const workers = p.workers ?? 1
+    this.status.textContent = `${where}: ${p.property} with ${p.processes} ${p.processes === 1 ? 'process' : 'processes'} · ${n(p.states)} states · ${n(p.statesPerSecond)} states/s · ${p.seconds.toFixed(1)} s · on ${workers} ${workers === 1 ? 'worker' : 'workers'}`
   }
 
   note(text: string): void { this.status.textContent = text }

@@ -14,18 +14,17 @@ export class StoppedError extends Error {
 }
 
 /**
- * The parallel exploration pool is opt-in in the workbench: `?workers=N` (or `?workers=auto`, one
- * per core) in the page's address. By default rows explore on the one kernel worker, because the
- * pool was seen to hang now and then when runs follow each other quickly (see DEVELOPERS.md).
+ * How many workers explore invariant rows: one per core by default (`auto`), where the page is
+ * cross-origin isolated (worker.ts falls back to one elsewhere); `?workers=N` in the page's
+ * address asks for N (`?workers=1`: the kernel worker alone).
  */
 function workersWanted(): string {
   const w = new URLSearchParams(location.search).get('workers') ?? ''
-  return /^(auto|[0-9]{1,3})$/.test(w) ? w : ''
+  return /^(auto|[0-9]{1,3})$/.test(w) ? w : 'auto'
 }
 
 function spawn(): { worker: Worker; api: Comlink.Remote<KernelApi> } {
-  const wanted = workersWanted()
-  const worker = new Worker(new URL('./worker.ts', import.meta.url), { type: 'module', name: wanted ? `twofold-kernel workers=${wanted}` : 'twofold-kernel' })
+  const worker = new Worker(new URL('./worker.ts', import.meta.url), { type: 'module', name: `twofold-kernel workers=${workersWanted()}` })
   return { worker, api: Comlink.wrap<KernelApi>(worker) }
 }
 
@@ -82,18 +81,24 @@ export class Kernel {
   }
 
   /**
-   * A run worker whose failure is never a hang: an uncaught error in it (the solver's WebAssembly
-   * has been seen to fault inside its threads in Chromium, and then never answers) ends the row
-   * in progress with that error, and a fresh worker takes its place.
+   * A run worker whose failure is never a hang: an uncaught error in it, or one its solver threads
+   * raise (which the worker reports as a `twofoldFault` message, worker.ts; a faulted solver never
+   * answers again), ends the row in progress with that error, and a fresh worker takes its place,
+   * also when no row is running. Ending the worker ends the workers it started (its exploration
+   * pool and the solver's threads); the fresh one starts its own.
    */
   private watched(w: { worker: Worker; api: Comlink.Remote<KernelApi> }): { worker: Worker; api: Comlink.Remote<KernelApi> } {
-    w.worker.addEventListener('error', (e) => {
-      if (this.runner !== w || !this.rejectRun) return
-      e.preventDefault()
+    const failed = (message: string) => {
+      if (this.runner !== w) return
       w.worker.terminate()
       this.runner = this.watched(spawn())
-      this.rejectRun(new Error(`the kernel failed while running this row (${e.message || 'an error in the worker'}); it was restarted: run the check again`))
+      this.rejectRun?.(new Error(`the kernel failed while running this row (${message}); it was restarted: run the check again`))
       this.rejectRun = null
+    }
+    w.worker.addEventListener('error', (e) => { e.preventDefault(); failed(e.message || 'an error in the worker') })
+    w.worker.addEventListener('message', (e: MessageEvent<{ twofoldFault?: unknown } | null>) => {
+      const fault = e.data?.twofoldFault
+      if (typeof fault === 'string') failed(fault)
     })
     return w
   }

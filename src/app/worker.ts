@@ -8,10 +8,10 @@ import {
 } from '../../kernels/api'
 
 /**
- * The pool of parallel exploration workers (kernels/explore/parallel.ts): one Web Worker per core,
- * started ahead of the first run (nested workers may not start while this worker blocks) where
- * the page is cross-origin isolated and the page's address asks for it (`?workers=N|auto`);
- * elsewhere rows are explored on this worker alone.
+ * The pool of parallel exploration workers (kernels/explore/parallel.ts): one Web Worker per core
+ * (or as many as the page's address asks, `?workers=N`), started ahead of the first run (nested
+ * workers may not start while this worker blocks) where the page is cross-origin isolated;
+ * elsewhere, or with `?workers=1`, rows are explored on this worker alone.
  */
 let pool: Promise<ExplorePool | null> | null = null
 function explorePool(): Promise<ExplorePool | null> {
@@ -19,9 +19,8 @@ function explorePool(): Promise<ExplorePool | null> {
   return pool
 }
 async function startPool(): Promise<ExplorePool | null> {
-  // Opt-in: the page names this worker `twofold-kernel workers=N|auto` when asked (kernel.ts).
-  const asked = /workers=(auto|[0-9]+)/.exec(self.name)?.[1]
-  if (!asked) return null
+  // The page names this worker `twofold-kernel workers=N|auto` (kernel.ts).
+  const asked = /workers=(auto|[0-9]+)/.exec(self.name)?.[1] ?? 'auto'
   const cores = navigator.hardwareConcurrency || 1
   const n = Math.min(16, asked === 'auto' ? cores : Number(asked))
   if (n < 2 || typeof SharedArrayBuffer === 'undefined' || !globalThis.crossOriginIsolated || typeof Worker === 'undefined') return null
@@ -117,3 +116,10 @@ export const kernelApi = {
 export type KernelApi = typeof kernelApi
 
 Comlink.expose(kernelApi)
+
+// An error in one of the solver's threads reaches this worker's global scope (the solver's script
+// rethrows it here) but not always the page; a solver that faulted never answers again. The page
+// ends the row and starts a fresh worker when told (kernel.ts `watched`).
+self.addEventListener('error', (e) => {
+  self.postMessage({ twofoldFault: e.message || 'an error in a solver thread' })
+})

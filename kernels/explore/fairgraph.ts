@@ -7,7 +7,8 @@
 import type { EdgeSink } from '../logic/emptiness'
 import type { System } from '../logic/product'
 import { channelIndex, type Instance } from '../model/instance'
-import { channelEmpty, isCrashed, isStable, type StateTerm } from '../model/observe'
+import { channelEmpty, isStable, type StateTerm } from '../model/observe'
+import { fieldMask } from '../model/layout'
 import { ChunkedInt32 } from '../base/chunked'
 import type { EdgeRecorder, ExploreResult } from './reach'
 import type { StateStore } from '../base/stateset'
@@ -33,7 +34,10 @@ export interface FairMarks {
 /** The fairness marks of the instance's edges; see `FairMarks`. */
 export function fairMarks(inst: Instance): FairMarks {
   const n = inst.n
-  const crashed = Array.from({ length: n }, (_, i) => isCrashed(inst, i))
+  // Process i is down where its alive field reads 0 (observe.ts isCrashed), tested inline here:
+  // the marks are computed for every edge of the search.
+  const aliveWord = Int32Array.from(inst.layout.alive.slice(0, n), (f) => f.word)
+  const aliveMask = Uint32Array.from(inst.layout.alive.slice(0, n), (f) => fieldMask(f))
   const channels: { i: number; bit: number; index: number; test: (w: Uint32Array, o: number) => boolean }[] = []
   for (let j = 0; j < n; j++) {
     for (let i = 0; i < n; i++) {
@@ -55,14 +59,14 @@ export function fairMarks(inst: Instance): FairMarks {
     fairnessSets,
     sourceMarks(src, off) {
       let base = 0
-      for (let i = 0; i < n; i++) if (crashed[i](src, off)) base |= 1 << i
+      for (let i = 0; i < n; i++) if ((src[off + aliveWord[i]] & aliveMask[i]) === 0) base |= 1 << i
       for (const c of channels) if ((base >> c.i) & 1 || c.test(src, off)) base |= 1 << c.bit
       return base
     },
     edgeMarks(base, dst, dstOff, stepped, receivedFrom) {
       let m = base | stepped
       for (let rest = receivedFrom; rest !== 0; rest &= rest - 1) m |= markOfIndex[31 - Math.clz32(rest & -rest)]
-      for (let i = 0; i < n; i++) if ((m & downMarks[i]) !== downMarks[i] && crashed[i](dst, dstOff)) m |= downMarks[i]
+      for (let i = 0; i < n; i++) if ((m & downMarks[i]) !== downMarks[i] && (dst[dstOff + aliveWord[i]] & aliveMask[i]) === 0) m |= downMarks[i]
       if (stab && stab(dst, dstOff)) m |= 1 << (fairnessSets - 1)
       return m
     },

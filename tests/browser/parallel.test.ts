@@ -95,15 +95,20 @@ describe('parallel exploration in the workbench', () => {
     await context.close()
   })
 
+  /** The pumps row run on the page equals Node's, explored on the kernel worker alone, and the page says so. */
+  async function expectOneWorkerRow(page: Page): Promise<void> {
+      const got = await runPumps(page)
+      expect(got.counts).toContain(`${want.states.toLocaleString('en-US')} states`)
+      expect(got.counts).toContain(`${want.transitions.toLocaleString('en-US')} transitions`)
+      expect(got.verdict).toMatch(/holds/)
+      expect(exploreWorkers(page)).toBe(0)
+      expect(got.lines.some((l) => l.includes('on 1 worker'))).toBe(true)
+      expect(got.lines.some((l) => /on \d+ workers/.test(l))).toBe(false)
+  }
+
   it('keeps one worker with ?workers=1, with the same row', async () => {
     const { context, page, errors } = await open('?workers=1', true)
-    const got = await runPumps(page)
-    expect(got.counts).toContain(`${want.states.toLocaleString('en-US')} states`)
-    expect(got.counts).toContain(`${want.transitions.toLocaleString('en-US')} transitions`)
-    expect(got.verdict).toMatch(/holds/)
-    expect(exploreWorkers(page)).toBe(0)
-    expect(got.lines.some((l) => l.includes('on 1 worker'))).toBe(true)
-    expect(got.lines.some((l) => /on \d+ workers/.test(l))).toBe(false)
+    await expectOneWorkerRow(page)
     expect(errors).toEqual([])
     await context.close()
   })
@@ -111,13 +116,7 @@ describe('parallel exploration in the workbench', () => {
   it('falls back to one worker where the page is not cross-origin isolated, with the same row', async () => {
     const { context, page, errors } = await open('', false)
     expect(await page.evaluate(() => globalThis.crossOriginIsolated || typeof SharedArrayBuffer !== 'undefined')).toBe(false)
-    const got = await runPumps(page)
-    expect(got.counts).toContain(`${want.states.toLocaleString('en-US')} states`)
-    expect(got.counts).toContain(`${want.transitions.toLocaleString('en-US')} transitions`)
-    expect(got.verdict).toMatch(/holds/)
-    expect(exploreWorkers(page)).toBe(0)
-    expect(got.lines.some((l) => l.includes('on 1 worker'))).toBe(true)
-    expect(got.lines.some((l) => /on \d+ workers/.test(l))).toBe(false)
+    await expectOneWorkerRow(page)
     expect(errors).toEqual([])
     await context.close()
   })

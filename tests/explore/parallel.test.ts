@@ -46,6 +46,28 @@ function protocolOf(text: string): ProtocolModel {
   return nb.protocols[0]
 }
 
+/**
+ * Every unreduced row of `search` in generated notebooks (seeds 1..seeds) run on 2 and 3 workers
+ * equals the row run on one (times aside); returns how many rows were compared and violated.
+ */
+function rowsAgree(search: 'invariant' | 'ltl', seeds: number): { rows: number; violated: number } {
+  const strip = (r: CheckRow) => ({ ...r, seconds: 0 })
+  let rows = 0
+  let violated = 0
+  for (let seed = 1; seed <= seeds; seed++) {
+    const text = generateNotebook(seed)
+    const nb = analyzeNotebook(text + '\n' + generateProperties(protocolOf(text), seed))
+    for (const plan of planRows(nb)) {
+      const one = runRow(nb, plan)
+      if (one.search !== search || one.reducedStates !== undefined) continue
+      rows++
+      if (one.verdict === 'violated') violated++
+      for (const w of [2, 3]) expect(strip(runRow(nb, plan, { workers: w })), `seed ${seed} row ${plan.row} workers ${w}`).toEqual(strip(one))
+    }
+  }
+  return { rows, violated }
+}
+
 describe('parallel exploration equals sequential exploration', () => {
   for (const minFrontier of [0, 16]) {
     it(`generated protocols at N = 1, 2, 3 under a limit, for ${WORKERS.join(', ')} workers (levels of at least ${minFrontier} sources on the workers)`, () => {
@@ -78,20 +100,7 @@ describe('parallel exploration equals sequential exploration', () => {
 
   it('rows of generated invariants: the same verdicts, counts and counterexamples for 1, 2 and 3 workers', () => {
     parallelTuning.minFrontier = 0
-    const strip = (r: CheckRow) => ({ ...r, seconds: 0 })
-    let invariantRows = 0
-    let violated = 0
-    for (let seed = 1; seed <= 2 * SEEDS; seed++) {
-      const text = generateNotebook(seed)
-      const nb = analyzeNotebook(text + '\n' + generateProperties(protocolOf(text), seed))
-      for (const plan of planRows(nb)) {
-        const one = runRow(nb, plan)
-        if (one.search !== 'invariant' || one.reducedStates !== undefined) continue
-        invariantRows++
-        if (one.verdict === 'violated') violated++
-        for (const w of [2, 3]) expect(strip(runRow(nb, plan, { workers: w })), `seed ${seed} row ${plan.row} workers ${w}`).toEqual(strip(one))
-      }
-    }
+    const { rows: invariantRows, violated } = rowsAgree('invariant', 2 * SEEDS)
     expect(invariantRows).toBeGreaterThan(25)
     expect(violated).toBeGreaterThan(0)
     expect(violated).toBeLessThan(invariantRows)
@@ -157,20 +166,7 @@ describe('a temporal row\'s fair graph recorded by the parallel search', () => {
 
   it('gives temporal rows the same verdicts, counts and lassos for 1, 2 and 3 workers', () => {
     parallelTuning.minFrontier = 0
-    const strip = (r: CheckRow) => ({ ...r, seconds: 0 })
-    let temporalRows = 0
-    let violated = 0
-    for (let seed = 1; seed <= SEEDS; seed++) {
-      const text = generateNotebook(seed)
-      const nb = analyzeNotebook(text + '\n' + generateProperties(protocolOf(text), seed))
-      for (const plan of planRows(nb)) {
-        const one = runRow(nb, plan)
-        if (one.search !== 'ltl' || one.reducedStates !== undefined) continue
-        temporalRows++
-        if (one.verdict === 'violated') violated++
-        for (const w of [2, 3]) expect(strip(runRow(nb, plan, { workers: w })), `seed ${seed} row ${plan.row} workers ${w}`).toEqual(strip(one))
-      }
-    }
+    const { rows: temporalRows, violated } = rowsAgree('ltl', SEEDS)
     expect(temporalRows).toBeGreaterThan(15)
     expect(violated).toBeGreaterThan(0)
   })

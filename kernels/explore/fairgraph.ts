@@ -77,6 +77,11 @@ export function fairMarks(inst: Instance): FairMarks {
  * The distinct (target, marks) pairs of one row, first occurrence first: an edge that reaches the
  * same target with other marks (other processes stepping) is a separate edge. Open addressing
  * with slots invalidated by a stamp, so a new row costs nothing.
+ *
+ * A pair whose target the caller already knows to be new in the row (the explorer keeps the set of
+ * a source's targets anyway) is only queued, not hashed; the queue is hashed when the first pair
+ * with a repeated target arrives. Most rows have none (every edge of a synchronous tick reaches
+ * another state), so most rows are never hashed here at all.
  */
 export class RowSet {
   private targets = new Int32Array(64)
@@ -84,14 +89,39 @@ export class RowSet {
   private stamps = new Int32Array(64)
   private stamp = 1
   private size = 0
+  /** Pairs of the row not hashed yet: target, marks, target, marks... */
+  private queue = new Int32Array(128)
+  private queued = 0
 
   reset(): void {
     this.stamp++
     this.size = 0
+    this.queued = 0
   }
 
-  /** True when (t, m) is new in this row. */
-  add(t: number, m: number): boolean {
+  /** True when (t, m) is new in this row; `fresh`: no pair of the row so far has target t. */
+  add(t: number, m: number, fresh = false): boolean {
+    if (fresh) {
+      if (this.queued === this.queue.length) {
+        const q = new Int32Array(this.queue.length * 2)
+        q.set(this.queue)
+        this.queue = q
+      }
+      this.queue[this.queued++] = t
+      this.queue[this.queued++] = m
+      return true
+    }
+    if (this.queued > 0) this.hashQueue()
+    return this.insert(t, m)
+  }
+
+  private hashQueue(): void {
+    const q = this.queue, n = this.queued
+    this.queued = 0
+    for (let k = 0; k < n; k += 2) this.insert(q[k], q[k + 1])
+  }
+
+  private insert(t: number, m: number): boolean {
     let mask = this.targets.length - 1
     let slot = (Math.imul(t, 0x9e3779b1) ^ Math.imul(m, 0x85ebca6b)) >>> 7 & mask
     while (this.stamps[slot] === this.stamp) {
@@ -198,11 +228,11 @@ export class FairGraphRecorder implements EdgeRecorder {
     this.marks.push(marks)
   }
 
-  edge(target: number, dst: Uint32Array, stepped: number, receivedFrom: number): void {
+  edge(target: number, dst: Uint32Array, stepped: number, receivedFrom: number, _perm: number, fresh?: boolean): void {
     if (!this.start) return
     if (!this.baseKnown) { this.base = this.fm.sourceMarks(this.src, 0); this.baseKnown = true }
     const m = this.fm.edgeMarks(this.base, dst, 0, stepped, receivedFrom)
-    if (!this.row.add(target, m)) return
+    if (!this.row.add(target, m, fresh)) return
     this.target.push(target)
     this.marks.push(m)
   }

@@ -26,6 +26,7 @@ import type { Instance } from '../model/instance'
 import type { Formula, ProtocolModel, Term } from '../language/model'
 import { explore, type ExploreOptions, type ExploreResult } from './reach'
 import { StateStore, hashWords } from '../base/stateset'
+import { TargetSet } from '../base/targetset'
 import { RowSet, fairMarks, type FairMarks } from './fairgraph'
 import type { EdgeRecorder } from './reach'
 
@@ -683,39 +684,6 @@ class LevelState {
   }
 }
 
-/** Per-source distinct targets (as in reach.ts): stamps make a reset free. */
-class Seen {
-  keys = new Int32Array(64)
-  stamps = new Int32Array(64)
-  list: number[] = []
-  stamp = 1
-  reset(): void { this.stamp++; this.list.length = 0 }
-  add(id: number): boolean {
-    let mask = this.keys.length - 1
-    let slot = Math.imul(id, 0x9e3779b1) >>> 7 & mask
-    while (this.stamps[slot] === this.stamp) {
-      if (this.keys[slot] === id) return false
-      slot = (slot + 1) & mask
-    }
-    this.keys[slot] = id
-    this.stamps[slot] = this.stamp
-    this.list.push(id)
-    if (this.list.length * 2 > this.keys.length) {
-      this.keys = new Int32Array(this.keys.length * 2)
-      this.stamps = new Int32Array(this.keys.length)
-      this.stamp = 1
-      mask = this.keys.length - 1
-      for (const k of this.list) {
-        let s = Math.imul(k, 0x9e3779b1) >>> 7 & mask
-        while (this.stamps[s] === this.stamp) s = (s + 1) & mask
-        this.keys[s] = k
-        this.stamps[s] = this.stamp
-      }
-    }
-    return true
-  }
-}
-
 /**
  * Waits until all `P` workers arrive; the last one runs `last` first (a sense-reversing barrier
  * among the workers, so a level costs one round trip to the coordinator, not three).
@@ -801,7 +769,7 @@ function expandPhase(v: WorkerViews, index: number, job: CompiledJob, st: LevelS
   const stage = u32(v.stage)
   const minSrc = i32(v.minSrc), slotOf = i32(v.slotOf)
   st.reset()
-  const seen = new Seen()
+  const seen = new TargetSet()
   let transitions = 0
   let published = 0
   // This worker's reserved staging slots not used yet: [spare, spareEnd).
@@ -872,11 +840,12 @@ function expandPhase(v: WorkerViews, index: number, job: CompiledJob, st: LevelS
         if (!ok) { Atomics.store(ctrl, C.HALT, 1); stop = true; return true }
       }
     }
-    if (seen.add(id)) {
+    const first = seen.add(id)
+    if (first) {
       transitions++
       if (id < 0) st.pushEmit(-id - 1)
     }
-    if (notes && !notes.edge(id, succ, stepped, receivedFrom)) { stop = true; return true }
+    if (notes && !notes.edge(id, succ, stepped, receivedFrom, first)) { stop = true; return true }
     return false
   }
   const bound: ExpansionBound = {
@@ -992,10 +961,10 @@ class EdgeNotes {
     this.rowStart = this.n
     this.marks = this.fm.sourceMarks(src, 0)
   }
-  /** False when the region is full (the level is expanded again with more room). */
-  edge(id: number, succ: Uint32Array, stepped: number, receivedFrom: number): boolean {
+  /** False when the region is full (the level is expanded again with more room). `first`: id is new in this row. */
+  edge(id: number, succ: Uint32Array, stepped: number, receivedFrom: number, first: boolean): boolean {
     const m = this.fm.edgeMarks(this.marks, succ, 0, stepped, receivedFrom)
-    if (!this.row.add(id, m)) return true
+    if (!this.row.add(id, m, first)) return true
     if (this.n === this.cap) {
       Atomics.store(this.v.ctrl, C.EDGEOVER, 1)
       Atomics.store(this.v.ctrl, C.HALT, 2)

@@ -10,6 +10,7 @@ import { PropertyFault, type ModelError } from '../model/errors'
 import type { ExpansionBound } from '../model/expansion'
 import type { Instance } from '../model/instance'
 import { isOutOfMemory, StateStore } from '../base/stateset'
+import { TargetSet } from '../base/targetset'
 
 /** Progress of a running exploration (reported at most every 100 ms). */
 export interface ExploreProgress {
@@ -36,8 +37,11 @@ export interface EdgeRecorder {
   readonly reduced?: boolean
   /** Source `index` (held in src[0..words)) is about to be expanded. */
   beginSource(index: number, src: Uint32Array): void
-  /** One successor of the current source: its store index and what `successors` reported. */
-  edge(target: number, dst: Uint32Array, stepped: number, receivedFrom: number, perm: number): void
+  /**
+   * One successor of the current source: its store index and what `successors` reported; `fresh`
+   * is true when no earlier edge of this source reached `target` (unreduced search only).
+   */
+  edge(target: number, dst: Uint32Array, stepped: number, receivedFrom: number, perm: number, fresh?: boolean): void
   /** Where offered: an edge whose fairness marks were computed by the caller (parallel search). */
   markedEdge?(target: number, marks: number): void
 }
@@ -107,51 +111,6 @@ export interface ExploreResult {
   workers?: number
 }
 
-/**
- * Distinct targets of one source: an open-addressing set of store indices whose slots are
- * invalidated by bumping a stamp, so starting a new source costs nothing.
- */
-class TargetSet {
-  private keys = new Int32Array(64)
-  private stamps = new Int32Array(64)
-  private list: number[] = []
-  private stamp = 1
-  private size = 0
-
-  reset(): void {
-    this.stamp++
-    this.size = 0
-    this.list.length = 0
-  }
-
-  /** True when idx was not yet a target of this source. */
-  add(idx: number): boolean {
-    let mask = this.keys.length - 1
-    let slot = Math.imul(idx, 0x9e3779b1) >>> 7 & mask
-    while (this.stamps[slot] === this.stamp) {
-      if (this.keys[slot] === idx) return false
-      slot = (slot + 1) & mask
-    }
-    this.keys[slot] = idx
-    this.stamps[slot] = this.stamp
-    this.list.push(idx)
-    if (++this.size * 2 > this.keys.length) {
-      const old = this.list.slice()
-      this.keys = new Int32Array(this.keys.length * 2)
-      this.stamps = new Int32Array(this.keys.length)
-      this.stamp = 1
-      mask = this.keys.length - 1
-      for (const k of old) {
-        let s = Math.imul(k, 0x9e3779b1) >>> 7 & mask
-        while (this.stamps[s] === this.stamp) s = (s + 1) & mask
-        this.keys[s] = k
-        this.stamps[s] = this.stamp
-      }
-    }
-    return true
-  }
-}
-
 /** Explores the instance breadth-first from its initial states. */
 export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResult {
   const t0 = performance.now()
@@ -215,20 +174,23 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
     if (idx < 0) {
       if (store.size >= limit) { end.limitHit = halted = true; return true }
       idx = store.insert(dst, 0)
-      if (seen.add(idx)) transitions++
-      if (rec) record(idx, succ, stepped, receivedFrom)
+      const fresh = seen.add(idx)
+      if (fresh) transitions++
+      if (rec) record(idx, succ, stepped, receivedFrom, fresh)
       if (invariant && !check(dst, 0, idx)) return true
       return false
     }
-    if (seen.add(idx)) transitions++
-    if (rec) record(idx, succ, stepped, receivedFrom)
+    const fresh = seen.add(idx)
+    if (fresh) transitions++
+    if (rec) record(idx, succ, stepped, receivedFrom, fresh)
     return false
   }
 
   // Unreduced, `succ` is the state stored; reduced, the raw successor (the recorder's `dst`).
-  const record = (idx: number, succ: Uint32Array, stepped: number, receivedFrom: number) => {
+  // `fresh` (idx not yet a target of this source) only speaks for real targets, not representatives.
+  const record = (idx: number, succ: Uint32Array, stepped: number, receivedFrom: number, fresh: boolean) => {
     if (memo) memo.rep[raw!.size - 1] = idx
-    rec!.edge(idx, succ, stepped, receivedFrom, perm)
+    rec!.edge(idx, succ, stepped, receivedFrom, perm, !memo && fresh)
   }
 
   // One bound object for the whole search (no allocation per state); see expansion.ts.

@@ -7,7 +7,7 @@
 import type { EdgeSink } from '../logic/emptiness'
 import type { System } from '../logic/product'
 import { channelIndex, type Instance } from '../model/instance'
-import { channelEmpty, isStable, type StateTerm } from '../model/observe'
+import { isStable, type StateTerm } from '../model/observe'
 import { fieldMask } from '../model/layout'
 import { ChunkedInt32 } from '../base/chunked'
 import type { EdgeRecorder, ExploreResult } from './reach'
@@ -38,11 +38,11 @@ export function fairMarks(inst: Instance): FairMarks {
   // the marks are computed for every edge of the search.
   const aliveWord = Int32Array.from(inst.layout.alive.slice(0, n), (f) => f.word)
   const aliveMask = Uint32Array.from(inst.layout.alive.slice(0, n), (f) => fieldMask(f))
-  const channels: { i: number; bit: number; index: number; test: (w: Uint32Array, o: number) => boolean }[] = []
+  const channels: { i: number; bit: number; index: number }[] = []
   for (let j = 0; j < n; j++) {
     for (let i = 0; i < n; i++) {
       // Channel index of j->i as the instance numbers it (see Instance.channelCount).
-      if (i !== j) channels.push({ i, bit: n + channels.length, index: channelIndex(n, j, i), test: channelEmpty(inst, j, i) })
+      if (i !== j) channels.push({ i, bit: n + channels.length, index: channelIndex(n, j, i) })
     }
   }
   // The mark of the channel with each index, so an edge reads only the channels that delivered.
@@ -53,19 +53,43 @@ export function fairMarks(inst: Instance): FairMarks {
   const downMarks = new Int32Array(Math.max(1, n))
   for (let i = 0; i < n; i++) downMarks[i] = 1 << i
   for (const c of channels) downMarks[c.i] |= 1 << c.bit
+  // Channel k is empty where none of its words w[chanWord[x]] & chanMask[x], x in
+  // chanFrom[k] .. chanFrom[k + 1], is set (observe.ts channelEmpty, flattened for the same reason).
+  const chanFrom = new Int32Array(channels.length + 1)
+  const chanWord: number[] = [], chanMask: number[] = []
+  channels.forEach((c, k) => {
+    chanFrom[k] = chanWord.length
+    const byWord = new Map<number, number>()
+    for (const f of inst.layout.channel[c.index]) byWord.set(f.word, ((byWord.get(f.word) ?? 0) | fieldMask(f)) >>> 0)
+    for (const [w, mask] of byWord) { chanWord.push(w); chanMask.push(mask) }
+  })
+  chanFrom[channels.length] = chanWord.length
+  const cw = Int32Array.from(chanWord), cm = Uint32Array.from(chanMask)
+  const chanDest = Int32Array.from(channels, (c) => c.i)
+  const chanBit = Int32Array.from(channels, (c) => 1 << c.bit)
   const stab = inst.protocol.timing.kind === 'eventually synchronous' ? isStable(inst) : null
   const fairnessSets = n + channels.length + (stab ? 1 : 0)
+  // Channel c's mark is bit n + c (channels are listed in index order), so the marks of the
+  // channels an edge delivered from are `receivedFrom << n`, while they fit in 31 bits.
+  for (const c of channels) if (c.bit !== n + c.index) throw new Error('internal error: channel marks out of index order')
+  const shifted = n + channels.length <= 31
   return {
     fairnessSets,
     sourceMarks(src, off) {
       let base = 0
       for (let i = 0; i < n; i++) if ((src[off + aliveWord[i]] & aliveMask[i]) === 0) base |= 1 << i
-      for (const c of channels) if ((base >> c.i) & 1 || c.test(src, off)) base |= 1 << c.bit
+      for (let k = 0; k < chanDest.length; k++) {
+        if ((base >> chanDest[k]) & 1) { base |= chanBit[k]; continue }
+        let empty = true
+        for (let x = chanFrom[k]; x < chanFrom[k + 1]; x++) if ((src[off + cw[x]] & cm[x]) !== 0) { empty = false; break }
+        if (empty) base |= chanBit[k]
+      }
       return base
     },
     edgeMarks(base, dst, dstOff, stepped, receivedFrom) {
       let m = base | stepped
-      for (let rest = receivedFrom; rest !== 0; rest &= rest - 1) m |= markOfIndex[31 - Math.clz32(rest & -rest)]
+      if (shifted) m |= receivedFrom << n
+      else for (let rest = receivedFrom; rest !== 0; rest &= rest - 1) m |= markOfIndex[31 - Math.clz32(rest & -rest)]
       for (let i = 0; i < n; i++) if ((m & downMarks[i]) !== downMarks[i] && (dst[dstOff + aliveWord[i]] & aliveMask[i]) === 0) m |= downMarks[i]
       if (stab && stab(dst, dstOff)) m |= 1 << (fairnessSets - 1)
       return m
@@ -78,10 +102,10 @@ export function fairMarks(inst: Instance): FairMarks {
  * same target with other marks (other processes stepping) is a separate edge. Open addressing
  * with slots invalidated by a stamp, so a new row costs nothing.
  *
- * A pair whose target the caller already knows to be new in the row (the explorer keeps the set of
- * a source's targets anyway) is only queued, not hashed; the queue is hashed when the first pair
- * with a repeated target arrives. Most rows have none (every edge of a synchronous tick reaches
- * another state), so most rows are never hashed here at all.
+ * A caller that already knows a pair's target to be new in the row (the explorer keeps the set of
+ * a source's targets anyway) need not add it: it only has to add the row's pairs it skipped before
+ * it asks about a pair whose target repeats (`FairGraphRecorder.edge`). Most rows have none (every
+ * edge of a synchronous tick reaches another state), so most rows are never hashed at all.
  */
 export class RowSet {
   private targets = new Int32Array(64)
@@ -89,39 +113,14 @@ export class RowSet {
   private stamps = new Int32Array(64)
   private stamp = 1
   private size = 0
-  /** Pairs of the row not hashed yet: target, marks, target, marks... */
-  private queue = new Int32Array(128)
-  private queued = 0
 
   reset(): void {
     this.stamp++
     this.size = 0
-    this.queued = 0
   }
 
-  /** True when (t, m) is new in this row; `fresh`: no pair of the row so far has target t. */
-  add(t: number, m: number, fresh = false): boolean {
-    if (fresh) {
-      if (this.queued === this.queue.length) {
-        const q = new Int32Array(this.queue.length * 2)
-        q.set(this.queue)
-        this.queue = q
-      }
-      this.queue[this.queued++] = t
-      this.queue[this.queued++] = m
-      return true
-    }
-    if (this.queued > 0) this.hashQueue()
-    return this.insert(t, m)
-  }
-
-  private hashQueue(): void {
-    const q = this.queue, n = this.queued
-    this.queued = 0
-    for (let k = 0; k < n; k += 2) this.insert(q[k], q[k + 1])
-  }
-
-  private insert(t: number, m: number): boolean {
+  /** True when (t, m) is new in this row. */
+  add(t: number, m: number): boolean {
     let mask = this.targets.length - 1
     let slot = (Math.imul(t, 0x9e3779b1) ^ Math.imul(m, 0x85ebca6b)) >>> 7 & mask
     while (this.stamps[slot] === this.stamp) {
@@ -187,6 +186,8 @@ export class FairGraphRecorder implements EdgeRecorder {
   private readonly row = new RowSet()
   private base = 0
   private baseKnown = false
+  /** Pairs at the end of the row not added to `row` yet (their targets were new in the row). */
+  private unhashed = 0
   private src: Uint32Array = new Uint32Array(0)
 
   /** `budget`: edges kept at most; 0 records nothing (rows are then recomputed on demand). */
@@ -216,6 +217,7 @@ export class FairGraphRecorder implements EdgeRecorder {
     this.src = src
     this.baseKnown = false
     this.row.reset()
+    this.unhashed = 0
   }
 
   /**
@@ -232,7 +234,18 @@ export class FairGraphRecorder implements EdgeRecorder {
     if (!this.start) return
     if (!this.baseKnown) { this.base = this.fm.sourceMarks(this.src, 0); this.baseKnown = true }
     const m = this.fm.edgeMarks(this.base, dst, 0, stepped, receivedFrom)
-    if (!this.row.add(target, m, fresh)) return
+    if (fresh) {
+      // A target new in the row: the pair is new; it joins the row's set only when a repeated
+      // target needs the set (see RowSet).
+      this.unhashed++
+    } else {
+      if (this.unhashed > 0) {
+        const end = this.target.length
+        for (let k = end - this.unhashed; k < end; k++) this.row.add(this.target.get(k), this.marks.get(k))
+        this.unhashed = 0
+      }
+      if (!this.row.add(target, m)) return
+    }
     this.target.push(target)
     this.marks.push(m)
   }

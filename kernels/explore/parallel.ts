@@ -943,6 +943,8 @@ class EdgeNotes {
   private n = 0
   private rowStart = 0
   private marks = 0
+  /** Pairs at the end of the row not added to `row` yet (their ids were new in the row). */
+  private unhashed = 0
   constructor(private readonly v: WorkerViews, private readonly index: number, private readonly fm: FairMarks) {
     const ctrl = v.ctrl
     this.edges = i32(v.edges)
@@ -958,13 +960,24 @@ class EdgeNotes {
   }
   source(src: Uint32Array): void {
     this.row.reset()
+    this.unhashed = 0
     this.rowStart = this.n
     this.marks = this.fm.sourceMarks(src, 0)
   }
   /** False when the region is full (the level is expanded again with more room). `first`: id is new in this row. */
   edge(id: number, succ: Uint32Array, stepped: number, receivedFrom: number, first: boolean): boolean {
     const m = this.fm.edgeMarks(this.marks, succ, 0, stepped, receivedFrom)
-    if (!this.row.add(id, m, first)) return true
+    if (first) {
+      // As in FairGraphRecorder.edge: a new target's pair joins the row's set only when needed.
+      this.unhashed++
+    } else {
+      if (this.unhashed > 0) {
+        const edges = this.edges, base = this.base
+        for (let k = this.n - this.unhashed; k < this.n; k++) this.row.add(edges[base + 2 * k], edges[base + 2 * k + 1])
+        this.unhashed = 0
+      }
+      if (!this.row.add(id, m)) return true
+    }
     if (this.n === this.cap) {
       Atomics.store(this.v.ctrl, C.EDGEOVER, 1)
       Atomics.store(this.v.ctrl, C.HALT, 2)

@@ -171,19 +171,16 @@ export function explore(inst: Instance, opts: ExploreOptions = {}): ExploreResul
       if (rec) memo!.note(k, perm)
     }
     let idx = store.lookup(dst, 0)
-    if (idx < 0) {
+    const stored = idx < 0
+    if (stored) {
       if (store.size >= limit) { end.limitHit = halted = true; return true }
       idx = store.insert(dst, 0)
-      const fresh = seen.add(idx)
-      if (fresh) transitions++
-      if (rec) record(idx, succ, stepped, receivedFrom, fresh)
-      if (invariant && !check(dst, 0, idx)) return true
-      return false
     }
     const fresh = seen.add(idx)
     if (fresh) transitions++
     if (rec) record(idx, succ, stepped, receivedFrom, fresh)
-    return false
+    // A state stored just now is checked (after its edge is recorded: a violation's edge is kept).
+    return stored && invariant !== undefined && !check(dst, 0, idx)
   }
 
   // Unreduced, `succ` is the state stored; reduced, the raw successor (the recorder's `dst`).

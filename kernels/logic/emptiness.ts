@@ -37,7 +37,7 @@ export interface MarkedGraph {
 }
 
 /** Integers of cursor state the search keeps per open node for `EdgeCursor`. */
-export const CURSOR_WORDS = 4
+export const CURSOR_WORDS = 7
 
 /**
  * A lazy enumeration of every node's edges. The search keeps `CURSOR_WORDS` integers per open

@@ -142,6 +142,40 @@ export function labelTest(sys: AtomSource, aut: Automaton): { direct: boolean; h
   }
 }
 
+/** Largest states x letters for which `lettersOf` builds a table. */
+const LETTER_TABLE_CELLS = 1 << 14
+
+/**
+ * The successors of each automaton state q whose label holds for each letter a (a set of atoms):
+ * `succ[start[(q << shift) | a] .. start[((q << shift) | a) + 1])`, in the automaton's order (see
+ * `lettersOf`). Only
+ * for direct labels (letters are atoms, one word) over few atoms; null otherwise.
+ */
+interface LetterTable {
+  shift: number
+  start: Int32Array
+  succ: Int32Array
+}
+
+function lettersOf(aut: Automaton): LetterTable | null {
+  const A = aut.atoms
+  if (aut.predicates || aut.labelWords !== 1 || A > 12 || aut.states << A > LETTER_TABLE_CELLS) return null
+  const L = 1 << A
+  const start = new Int32Array(aut.states * L + 1)
+  const succ: number[] = []
+  for (let q = 0; q < aut.states; q++) {
+    for (let a = 0; a < L; a++) {
+      start[q * L + a] = succ.length
+      for (let j = aut.succStart[q]; j < aut.succStart[q + 1]; j++) {
+        const r = aut.succ[j]
+        if (((a & aut.mustTrue[r]) ^ aut.mustTrue[r]) === 0 && (a & aut.mustFalse[r]) === 0) succ.push(r)
+      }
+    }
+  }
+  start[aut.states * L] = succ.length
+  return { shift: A, start, succ: Int32Array.from(succ) }
+}
+
 /**
  * The product's edges read lazily (`EdgeCursor`): for node (s, q) the cursor walks s's system
  * edges and, for each, q's automaton successors whose label holds at the target, in the order
@@ -149,20 +183,26 @@ export function labelTest(sys: AtomSource, aut: Automaton): { direct: boolean; h
  * of s's edges, cur[at + 2] the next automaton edge of q, cur[at + 3] q. With `EdgeRows` the
  * system edges are read in place; without, each open node's row is recomputed onto one packed
  * stack (and cut off when the node closes; `rowFrom` remembers where each row starts).
+ *
+ * When the letters are the atoms themselves and there are few (`LetterTable`), the subclass
+ * `LetterEdges` looks q's successors up by the target's atoms instead of testing them one by one:
+ * cur[at + 2] .. cur[at + 4] is then the range of q's successors whose label holds at the current
+ * system edge's target, cur[at + 5] that target and cur[at + 6] the edge's marks. Both hand out
+ * the same edges in the same order.
  */
 class ProductEdges implements EdgeCursor {
   mark = 0
-  private readonly rows: EdgeRows | null
-  private readonly to = new Int32Buffer()
-  private readonly fair = new Int32Buffer()
+  protected readonly rows: EdgeRows | null
+  protected readonly to = new Int32Buffer()
+  protected readonly fair = new Int32Buffer()
   private readonly rowFrom = new Int32Buffer()
   private readonly succStart: Int32Array
   private readonly succ: Int32Array
-  private readonly accept: Uint32Array
+  protected readonly accept: Uint32Array
   private readonly mustTrue: Uint32Array
   private readonly mustFalse: Uint32Array
 
-  constructor(private readonly sys: System, aut: Automaton, private readonly Q: number, private readonly pairs: PairMap | null,
+  constructor(protected readonly sys: System, aut: Automaton, protected readonly Q: number, protected readonly pairs: PairMap | null,
               private readonly direct: boolean, private readonly holds: (r: number, t: number) => boolean) {
     this.rows = sys.rows ?? null
     this.succStart = aut.succStart
@@ -195,6 +235,7 @@ class ProductEdges implements EdgeCursor {
     cur[at + 1] = end
     cur[at + 2] = this.succStart[q + 1]
     cur[at + 3] = q
+    cur[at + 4] = cur[at + 2]
   }
 
   next(_node: number, cur: Int32Array, at: number): number {
@@ -233,8 +274,58 @@ class ProductEdges implements EdgeCursor {
   }
 }
 
-/** The product of `sys` with `aut`; see the file comment for the label and mark conventions. */
-export function productGraph(sys: System, aut: Automaton): ProductGraph {
+/** `ProductEdges` with q's successors looked up by the target's atoms (`LetterTable`). */
+class LetterEdges extends ProductEdges {
+  private readonly atomMask: number
+
+  constructor(sys: System, aut: Automaton, Q: number, pairs: PairMap | null, holds: (r: number, t: number) => boolean,
+              private readonly lt: LetterTable) {
+    super(sys, aut, Q, pairs, true, holds)
+    this.atomMask = (1 << aut.atoms) - 1
+  }
+
+  override next(_node: number, cur: Int32Array, at: number): number {
+    let j = cur[at + 2]
+    if (j < cur[at + 4]) {
+      // More successors of q for the same system edge: its target and marks are kept in cur.
+      cur[at + 2] = j + 1
+      this.mark = cur[at + 6]
+      return this.id(cur[at + 5], this.lt.succ[j])
+    }
+    const { rows, atomMask, lt } = this
+    const q = cur[at + 3], e = cur[at + 1]
+    let k = cur[at], jEnd: number, t: number
+    do {
+      if (++k >= e) {
+        cur[at] = e
+        return -1
+      }
+      t = rows ? rows.target.get(k) : this.to.data[k]
+      const o = (q << lt.shift) | (this.sys.atoms(t, 0) & atomMask)
+      j = lt.start[o]
+      jEnd = lt.start[o + 1]
+    } while (j >= jEnd)
+    const m = ((rows ? rows.marks.get(k) : this.fair.data[k]) | (this.accept[q] << this.sys.fairnessSets)) | 0
+    cur[at] = k
+    cur[at + 2] = j + 1
+    cur[at + 4] = jEnd
+    cur[at + 5] = t
+    cur[at + 6] = m
+    this.mark = m
+    return this.id(t, lt.succ[j])
+  }
+
+  private id(t: number, r: number): number {
+    return this.pairs ? this.pairs.id(t, r) : t * this.Q + r
+  }
+}
+
+/**
+ * The product of `sys` with `aut`; see the file comment for the label and mark conventions.
+ * `letterTable: false` reads edges without the letter table (`LetterEdges`), for the tests that
+ * compare the two.
+ */
+export function productGraph(sys: System, aut: Automaton, letterTable = true): ProductGraph {
   const f = sys.fairnessSets
   if (f + aut.acceptanceSets > 31) {
     throw new Error(`${f} fairness sets and ${aut.acceptanceSets} acceptance sets exceed the 31 marks the product supports`)
@@ -246,11 +337,12 @@ export function productGraph(sys: System, aut: Automaton): ProductGraph {
   const { succStart, succ, accept, mustTrue, mustFalse } = aut
   const to = new Int32Buffer(), fair = new Int32Buffer()
   const { direct, holds } = labelTest(sys, aut)
+  const letters = direct && letterTable ? lettersOf(aut) : null
   const allMarks = ((f === 0 ? 0 : 2 ** f - 1) | (allAcceptance(aut) << f)) | 0
   return {
     allMarks,
     dense,
-    cursor: new ProductEdges(sys, aut, Q, pairs, direct, holds),
+    cursor: letters ? new LetterEdges(sys, aut, Q, pairs, holds, letters) : new ProductEdges(sys, aut, Q, pairs, direct, holds),
     get size() { return pairs ? pairs.size : sys.states! * Q },
     initial() {
       const ids: number[] = []

@@ -157,7 +157,7 @@ describe('productGraph', () => {
     expect(violated).toBeLessThan(270)
   })
 
-  it('reads each node\'s edges lazily, in place or recomputed, exactly as successors appends them', () => {
+  it('reads each node\'s edges lazily, in place or recomputed, with or without the letter table, exactly as successors appends them', () => {
     // Oracle: `successors`, which builds each row whole from the system's own `successors`.
     const r = new Random(91)
     for (let t = 0; t < 200; t++) {
@@ -178,8 +178,8 @@ describe('productGraph', () => {
       // The whole check agrees too: verdict, node count and lasso.
       const verdicts = variants.map((v) => checkLtl(v, f))
       for (const v of verdicts) expect(v, show(f)).toEqual(verdicts[0])
-      for (const variant of variants) {
-        const g = productGraph(variant, aut)
+      for (const [variant, letters] of variants.flatMap((v) => [[v, true], [v, false]] as const)) {
+        const g = productGraph(variant, aut, letters)
         const cursor = g.cursor!
         const cur = new Int32Array(2 * CURSOR_WORDS)
         // Every node the eager rows reach, each read through the cursor; a second node opened

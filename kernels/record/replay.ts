@@ -1,7 +1,8 @@
 // Replay: read a record back, run its checks again and say, field by field, what is different.
 // Every field is compared except the times (each row's `seconds` and the record's `created`): a
 // check that explores the same states must find the same counts, verdicts and counterexamples.
-import type { CheckRow, Progress } from '../result'
+import type { CheckRow } from '../result'
+import type { RunOptions } from '../api'
 import { canonicalJson, canonicalJsonPretty } from '../base/canonical'
 import { shardIndices } from '../plan'
 import { RECORD_TYPE, typeFault } from './schema'
@@ -186,18 +187,23 @@ export type ReplayOutcome =
   | { kind: 'notebook-changed'; recorded: string; actual: string; blocks: string[] }
   /** The checks ran again; `differences` is empty when every compared field matches. */
   | { kind: 'compared'; differences: Difference[]; fresh: VerificationRecord }
+  /** The run was stopped (`ReplayRunOptions.shouldStop`): nothing was compared. */
+  | { kind: 'stopped' }
+
+/** What a replay passes on to its run: progress, and a stop (Ctrl-C) with the solver waits it listens during. */
+export type ReplayRunOptions = Pick<RunOptions, 'onProgress' | 'shouldStop' | 'onWait'>
 
 /**
  * Replays `record`: on `text` when given (a notebook the reviewer holds, which must hash as the
  * record says), else on the notebook text the record embeds. Runs the record's checks again with
  * its options (under the record's notebook path, which is information and never opened) and
- * compares. `onProgress` is passed to the run.
+ * compares. `run` is passed to the run; a run stopped by it is `stopped`, compared with nothing.
  */
 export async function replayRecord(
   record: VerificationRecord,
   text: string | undefined,
   kernel: RecordKernel,
-  onProgress?: (progress: Progress) => void,
+  run: ReplayRunOptions = {},
 ): Promise<ReplayOutcome> {
   const notebook = text ?? record.notebook.text
   const actual = await sha256Hex(notebook)
@@ -205,7 +211,8 @@ export async function replayRecord(
   if (actual !== record.notebook.sha256) return { kind: 'notebook-changed', recorded: record.notebook.sha256, actual, blocks: changedBlocks(record.blocks, await hashBlocks(model)) }
   const only = record.options.only ?? undefined
   const shard = record.options.shard ? { index: record.options.shard.index, count: record.options.shard.count } : undefined
-  const report = await kernel.runNotebook(notebook, record.notebook.path, { only, shard, onProgress })
+  const report = await kernel.runNotebook(notebook, record.notebook.path, { only, shard, ...run })
+  if (run.shouldStop?.()) return { kind: 'stopped' }
   const fresh = await buildRecord(report, notebook, model, { only, shard })
   return { kind: 'compared', differences: compareRecords(record, fresh), fresh }
 }

@@ -1,10 +1,12 @@
 // `twofold replay RECORD.json [NOTEBOOK.md]`: a reviewer's re-run of a record. Exit 0 when every
 // compared field matches, 1 with the differences field by field, 2 when the notebook is not the one
-// the record was made from or the record cannot be trusted. Without a notebook argument the record's
+// the record was made from or the record cannot be trusted, 130 when Ctrl-C stopped it while the
+// solver worked (nothing is compared then; see interrupt.ts). Without a notebook argument the record's
 // embedded notebook is replayed: no path written inside a record is ever opened.
 import type { RecordKernel } from '../../kernels/record/kernel'
 import { formatDifference, replayRecord } from '../../kernels/record/replay'
-import { HOLDS, REFUSED, VIOLATED } from './exit'
+import { HOLDS, INTERRUPTED, REFUSED, VIOLATED } from './exit'
+import { interruptOnCtrlC } from './interrupt'
 import { readInput, readRecordFile, type CliIo } from './io'
 import { progressLine } from './progress'
 
@@ -15,11 +17,17 @@ export async function runReplay(io: CliIo, loadKernel: () => Promise<RecordKerne
   const kernel = await loadKernel()
 
   const progress = progressLine(io)
+  const ctrlC = interruptOnCtrlC(io, 'nothing will be compared')
   let outcome
   try {
-    outcome = await replayRecord(record, text, kernel, (p) => progress.report(p))
+    outcome = await replayRecord(record, text, kernel, { onProgress: (p) => progress.report(p), shouldStop: ctrlC.requested, onWait: ctrlC.onWait })
   } finally {
+    ctrlC.release()
     progress.clear()
+  }
+  if (outcome.kind === 'stopped') {
+    io.stderr(`twofold: replay interrupted by Ctrl-C: nothing was compared (a replay that did not finish says nothing about ${recordPath})\n`)
+    return INTERRUPTED
   }
   if (outcome.kind === 'notebook-changed') {
     const which = outcome.blocks.length ? outcome.blocks.join('; ') : 'no formal block changed, only the text around them'

@@ -12,7 +12,9 @@ import { afterAll, describe, expect, test } from 'vitest'
 import { proveInduction } from '../../kernels/induction/prove'
 import { loadSolver } from '../../kernels/induction/solver'
 import { analyzeNotebook } from '../../kernels/language/analyze'
-import { planRows, runPlannedRow } from '../../kernels/run'
+import { canonicalJsonPretty } from '../../kernels/base/canonical'
+import { buildRecord } from '../../kernels/record/record'
+import { planRows, runNotebook, runPlannedRow } from '../../kernels/run'
 import { main } from '../../src/cli/main'
 import { workspace } from '../cli/harness'
 import { LEDGER } from './fixtures'
@@ -85,6 +87,36 @@ describe('Ctrl-C on the command line', () => {
       expect(stdout).not.toMatch(/\bholds\b/)
       expect(stderr).toContain('twofold: interrupted by Ctrl-C: the report shows what finished; no record was written to ledger.json')
       expect(existsSync(join(ws.dir, 'ledger.json'))).toBe(false)
+    } finally {
+      ws.remove()
+    }
+  }, 120_000)
+
+  test('in-process: SIGINT while a replay\'s proof runs compares nothing, says so and exits 130', async () => {
+    // A record of the ledger made from a run stopped by hand (its row inconclusive): replaying it
+    // runs the unsettleable proof again, which Ctrl-C then stops.
+    const model = ledgerModel()
+    const report = await runNotebook(LEDGER, 'ledger.md', stopAtPoll(3))
+    expect(report.checks.map((r) => r.verdict)).toEqual(['inconclusive'])
+    const record = await buildRecord(report, LEDGER, model, {})
+    const ws = workspace({ 'ledger.json': canonicalJsonPretty(record) + '\n' })
+    try {
+      const signals = new EventEmitter()
+      let stdout = '', stderr = ''
+      const ran = main(['replay', 'ledger.json'], {
+        stdout: (s) => void (stdout += s), stderr: (s) => void (stderr += s),
+        stderrIsTTY: false, cwd: ws.dir, env: {}, stdin: [''], signals,
+      })
+      let ended = false
+      void ran.then(() => { ended = true })
+      while (signals.listenerCount('SIGINT') === 0 && !ended) await new Promise((ok) => setTimeout(ok, 50))
+      expect(stderr).toBe('')
+      signals.emit('SIGINT')
+      expect(await ran).toBe(130)
+      expect(signals.listenerCount('SIGINT')).toBe(0)
+      expect(stderr).toContain('twofold: stopping: nothing will be compared (Ctrl-C again ends at once)')
+      expect(stderr).toContain('twofold: replay interrupted by Ctrl-C: nothing was compared (a replay that did not finish says nothing about ledger.json)')
+      expect(stdout).toBe('')
     } finally {
       ws.remove()
     }

@@ -2,7 +2,7 @@
 // Every field is compared except the times (each row's `seconds` and the record's `created`): a
 // check that explores the same states must find the same counts, verdicts and counterexamples.
 import type { CheckRow } from '../result'
-import type { RunOptions } from '../api'
+import type { RunOptions } from '../plan'
 import { canonicalJson, canonicalJsonPretty } from '../base/canonical'
 import { shardIndices } from '../plan'
 import { RECORD_TYPE, typeFault } from './schema'
